@@ -1,0 +1,129 @@
+package compare
+
+import (
+	"encoding/json"
+	"math"
+)
+
+// Result is the JSON result of the contract. Commands fill the parts they
+// compute; empty parts are left out.
+type Result struct {
+	Tool       Tool         `json:"tool"`
+	Setup      *FileRef     `json:"setup,omitempty"`
+	Log        *LogRef      `json:"log,omitempty"`
+	Test       string       `json:"test,omitempty"`
+	Modes      []ModeJSON   `json:"modes,omitempty"`
+	Model      *ModelJSON   `json:"model,omitempty"`
+	Comparison []Comparison `json:"comparison,omitempty"`
+	Updated    *Updated     `json:"updated,omitempty"`
+	Checks     []Check      `json:"checks,omitempty"`
+	Warnings   []string     `json:"warnings"`
+}
+
+// Tool names the program that wrote a result.
+type Tool struct {
+	Name    string `json:"name"`
+	Version string `json:"version"`
+}
+
+// FileRef identifies an input file by path and content.
+type FileRef struct {
+	Path   string `json:"path"`
+	SHA256 string `json:"sha256"`
+}
+
+// LogRef describes the log a result came from.
+type LogRef struct {
+	Path         string   `json:"path"`
+	SHA256       string   `json:"sha256"`
+	Samples      int      `json:"samples"`
+	SampleRateHz float64  `json:"sample_rate_hz"`
+	DurationS    float64  `json:"duration_s"`
+	Notes        []string `json:"notes"`
+}
+
+// ModelJSON is the model part of a result.
+type ModelJSON struct {
+	Damped bool       `json:"damped"`
+	Modes  []ModeJSON `json:"modes"`
+}
+
+// ModeJSON is one mode as the contract writes it. Pointers are null when a
+// value does not exist (no node for a pure bounce shape).
+type ModeJSON struct {
+	Label                   string       `json:"label"`
+	NaturalFrequencyHz      float64      `json:"natural_frequency_hz"`
+	NaturalFrequencyRadPerS float64      `json:"natural_frequency_rad_per_s"`
+	DampedFrequencyHz       float64      `json:"damped_frequency_hz"`
+	DampingRatio            float64      `json:"damping_ratio"`
+	PitchPerBounceRadPerM   *float64     `json:"pitch_per_bounce_rad_per_m"`
+	NodeM                   *float64     `json:"node_m"`
+	Uncertainty             *Uncertainty `json:"uncertainty,omitempty"`
+	Method                  string       `json:"method"`
+}
+
+// Uncertainty holds one standard deviation of each estimated value.
+type Uncertainty struct {
+	NaturalFrequencyHz    float64  `json:"natural_frequency_hz"`
+	DampingRatio          float64  `json:"damping_ratio"`
+	PitchPerBounceRadPerM *float64 `json:"pitch_per_bounce_rad_per_m,omitempty"`
+	NodeM                 *float64 `json:"node_m,omitempty"`
+}
+
+// Comparison sets one measured mode beside the model's.
+type Comparison struct {
+	Label         string  `json:"label"`
+	MeasuredHz    float64 `json:"measured_hz"`
+	PredictedHz   float64 `json:"predicted_hz"`
+	DifferencePct float64 `json:"difference_pct"`
+	MAC           float64 `json:"mac"`
+}
+
+// Updated holds back-calculated effective rates and damping.
+type Updated struct {
+	FrontRateNPerM     float64 `json:"front_rate_n_per_m"`
+	RearRateNPerM      float64 `json:"rear_rate_n_per_m"`
+	FrontDampingNsPerM float64 `json:"front_damping_ns_per_m"`
+	RearDampingNsPerM  float64 `json:"rear_damping_ns_per_m"`
+}
+
+// Check is one verdict or guidance item.
+type Check struct {
+	Name   string `json:"name"`
+	Status string `json:"status"` // pass, warn or fail
+	Detail string `json:"detail"`
+}
+
+// finite returns a pointer to x, or nil for NaN and infinities (JSON null).
+func finite(x float64) *float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return nil
+	}
+	return &x
+}
+
+// JSON returns the contract's form of a mode; method says where it came from.
+func (m Mode) JSON(method string) ModeJSON {
+	return ModeJSON{
+		Label:                   m.Label,
+		NaturalFrequencyHz:      m.NaturalFrequencyHz,
+		NaturalFrequencyRadPerS: 2 * math.Pi * m.NaturalFrequencyHz,
+		DampedFrequencyHz:       m.DampedFrequencyHz,
+		DampingRatio:            m.DampingRatio,
+		PitchPerBounceRadPerM:   finite(m.PitchPerBounceRadPerM),
+		NodeM:                   finite(m.NodeM),
+		Method:                  method,
+	}
+}
+
+// Marshal returns the indented JSON of r with a final newline.
+func (r *Result) Marshal() ([]byte, error) {
+	if r.Warnings == nil {
+		r.Warnings = []string{}
+	}
+	b, err := json.MarshalIndent(r, "", "  ")
+	if err != nil {
+		return nil, err
+	}
+	return append(b, '\n'), nil
+}

@@ -1,0 +1,20 @@
+// Package simulate makes synthetic test logs from the bounce-pitch model of
+// package compare: rig tests with the front and rear wheel pans driven, and
+// drop tests (the car released onto its wheels, then free decay). It is the
+// project's own source of truth for the identification tests, so both routes
+// are exact to rounding:
+//
+//   - Rig: the pan accelerations are periodic over the synthesis length, built
+//     from Fourier coefficients; each body channel is the inverse FFT of the
+//     model's transmissibility times the pan spectra. That is the exact
+//     steady-state response of the model to the drive (the periodic state is
+//     the initial state), however long the record.
+//   - Drop: the pans step down at the release instant; from the state just
+//     after the step (compare.Vehicle.StepState) the body is propagated with
+//     the exact discrete transition matrix exp(A dt) of the state matrix.
+//
+// Sensor noise is white and Gaussian with a standard deviation that is a
+// fraction of each channel's clean RMS (rig) or peak absolute value (drop).
+// Every random number comes from one PCG stream seeded by Options.Seed, so a
+// log is reproducible byte for byte.
+package simulate

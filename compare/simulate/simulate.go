@@ -1,0 +1,333 @@
+package simulate
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+
+	"gonum.org/v1/gonum/dsp/fourier"
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/ingest"
+)
+
+// Drive kinds for a rig test.
+const (
+	// DriveRandom: independent band-limited Gaussian noise at the front and rear pans.
+	DriveRandom = "random"
+	// DriveSweep: a logarithmic sine sweep over the band, front and rear in
+	// phase for the first half of the record and in anti-phase for the second,
+	// so that both inputs are identifiable.
+	DriveSweep = "sweep"
+	// DriveRoad: band-limited noise at the front, the same noise delayed by
+	// wheelbase/speed at the rear, as on a road (the inputs are correlated).
+	DriveRoad = "road"
+)
+
+// Unit choices for the written channels.
+const (
+	UnitsSI    = "m/s^2"
+	UnitsG     = "g"
+	UnitsMixed = "mixed" // channels alternate g and m/s^2, starting with g
+)
+
+// Options are the test conditions. Zero values take the defaults of Defaults.
+type Options struct {
+	DurationS     float64
+	RateHz        float64
+	Seed          uint64
+	NoiseFraction float64 // noise standard deviation / channel RMS (rig) or peak (drop)
+	OffsetMPerS2  float64 // DC offset added to every channel
+	Units         string  // UnitsSI, UnitsG or UnitsMixed
+
+	Drive          string  // DriveRandom, DriveSweep or DriveRoad
+	BandLowHz      float64 // drive band, lower edge
+	BandHighHz     float64 // drive band, upper edge
+	DriveRMSMPerS2 float64 // RMS pan acceleration of each axle's drive
+	RoadSpeedMPerS float64 // DriveRoad only
+
+	DropHeightM float64 // drop only: height of the blocks
+	PreTriggerS float64 // drop only: rest before the release
+}
+
+// Defaults returns the default options for test "rig" or "drop".
+func Defaults(test string) Options {
+	o := Options{RateHz: 200, Seed: 1, Units: UnitsSI}
+	if test == "drop" {
+		o.DurationS, o.DropHeightM, o.PreTriggerS = 10, 0.04, 1
+		return o
+	}
+	o.DurationS, o.Drive, o.BandLowHz, o.BandHighHz, o.DriveRMSMPerS2, o.RoadSpeedMPerS =
+		300, DriveRandom, 0.5, 8, 2, 15
+	return o
+}
+
+// Log is a synthetic log: notes for the file's header and the columns in SI.
+type Log struct {
+	Notes   []string
+	RateHz  float64
+	Columns []ingest.LogColumn
+}
+
+func (o *Options) check(rig bool) error {
+	switch {
+	case !(o.RateHz > 0) || math.IsInf(o.RateHz, 0):
+		return fmt.Errorf("simulate: the sample rate must be positive (got %g Hz)", o.RateHz)
+	case !(o.DurationS > 0) || math.IsInf(o.DurationS, 0):
+		return fmt.Errorf("simulate: the duration must be positive (got %g s)", o.DurationS)
+	case o.DurationS*o.RateHz < 16:
+		return fmt.Errorf("simulate: %g s at %g Hz gives fewer than 16 samples", o.DurationS, o.RateHz)
+	case o.DurationS*o.RateHz > 1e9:
+		return fmt.Errorf("simulate: %g s at %g Hz is over 1e9 samples", o.DurationS, o.RateHz)
+	case !(o.NoiseFraction >= 0) || o.NoiseFraction > 10:
+		return fmt.Errorf("simulate: the noise fraction must lie in [0, 10] (got %g)", o.NoiseFraction)
+	case math.IsNaN(o.OffsetMPerS2) || math.IsInf(o.OffsetMPerS2, 0):
+		return errors.New("simulate: the offset must be finite")
+	case o.Units != UnitsSI && o.Units != UnitsG && o.Units != UnitsMixed:
+		return fmt.Errorf("simulate: units must be %q, %q or %q (got %q)", UnitsSI, UnitsG, UnitsMixed, o.Units)
+	}
+	if !rig {
+		if !(o.DropHeightM > 0) || o.DropHeightM > 0.5 {
+			return fmt.Errorf("simulate: the drop height must lie in (0, 0.5] m (got %g m)", o.DropHeightM)
+		}
+		if !(o.PreTriggerS >= 0) || o.PreTriggerS >= o.DurationS {
+			return fmt.Errorf("simulate: the pre-trigger time must lie in [0, duration) (got %g s)", o.PreTriggerS)
+		}
+		return nil
+	}
+	nyq := o.RateHz / 2
+	switch {
+	case o.Drive != DriveRandom && o.Drive != DriveSweep && o.Drive != DriveRoad:
+		return fmt.Errorf("simulate: drive must be %q, %q or %q (got %q)", DriveRandom, DriveSweep, DriveRoad, o.Drive)
+	case !(o.BandLowHz > 0) || !(o.BandHighHz > o.BandLowHz):
+		return fmt.Errorf("simulate: the drive band needs 0 < low < high (got %g to %g Hz)", o.BandLowHz, o.BandHighHz)
+	case o.BandHighHz >= nyq:
+		return fmt.Errorf("simulate: the drive band's upper edge %g Hz must lie below the Nyquist frequency %g Hz", o.BandHighHz, nyq)
+	case !(o.DriveRMSMPerS2 > 0) || math.IsInf(o.DriveRMSMPerS2, 0):
+		return fmt.Errorf("simulate: the drive RMS must be positive (got %g m/s^2)", o.DriveRMSMPerS2)
+	case o.Drive == DriveRoad && !(o.RoadSpeedMPerS > 0):
+		return fmt.Errorf("simulate: a road drive needs a positive speed (got %g m/s)", o.RoadSpeedMPerS)
+	}
+	return nil
+}
+
+// smoothLength returns the least n' >= n whose prime factors are 2, 3 and 5,
+// a length the FFT handles fast.
+func smoothLength(n int) int {
+	for m := n; ; m++ {
+		k := m
+		for _, p := range []int{2, 3, 5} {
+			for k%p == 0 {
+				k /= p
+			}
+		}
+		if k == 1 {
+			return m
+		}
+	}
+}
+
+func unitFor(units string, i int) string {
+	switch units {
+	case UnitsMixed:
+		if i%2 == 0 {
+			return "g"
+		}
+		return "m/s^2"
+	default:
+		return units
+	}
+}
+
+// Rig simulates a rig test: each [[input]] channel logs its axle's pan
+// acceleration, each [[sensor]] the body's vertical acceleration at its x_m.
+func Rig(v compare.Vehicle, sensors []ingest.Sensor, inputs []ingest.Input, o Options) (*Log, error) {
+	if err := v.Validate(); err != nil {
+		return nil, err
+	}
+	if err := o.check(true); err != nil {
+		return nil, err
+	}
+	if len(inputs) == 0 {
+		return nil, errors.New("simulate: a rig test needs [[input]] channels in the setup")
+	}
+	n := int(math.Round(o.DurationS * o.RateHz))
+	nfft := smoothLength(n)
+	fft := fourier.NewFFT(nfft)
+	rng := rand.New(rand.NewPCG(o.Seed, 0x72696465)) // second word: fixed stream id
+
+	uf, ur := drive(fft, o, v.WheelbaseM(), rng)
+	// Scale each axle's drive to the requested RMS over the written record.
+	for _, u := range []*[]float64{&uf, &ur} {
+		g := o.DriveRMSMPerS2 / rms((*u)[:n])
+		for i := range *u {
+			(*u)[i] *= g
+		}
+	}
+	Uf := fft.Coefficients(nil, uf)
+	Ur := fft.Coefficients(nil, ur)
+
+	log := &Log{RateHz: o.RateHz, Notes: []string{
+		fmt.Sprintf("ridemodes simulate: rig test, %s drive %g-%g Hz, %g m/s^2 RMS per axle, %g s at %g Hz, seed %d, noise %g, offset %g m/s^2",
+			o.Drive, o.BandLowHz, o.BandHighHz, o.DriveRMSMPerS2, o.DurationS, o.RateHz, o.Seed, o.NoiseFraction, o.OffsetMPerS2),
+		"synthetic data from the design model in the setup file; not a measurement",
+	}}
+	for _, in := range inputs {
+		src := uf
+		if in.Axle == "rear" {
+			src = ur
+		}
+		log.Columns = append(log.Columns, ingest.LogColumn{Name: in.Channel, Data: append([]float64(nil), src[:n]...)})
+	}
+	Y := make([]complex128, len(Uf))
+	y := make([]float64, nfft)
+	for _, s := range sensors {
+		for k := range Uf {
+			hf, hr := v.Transmissibility(fft.Freq(k)*o.RateHz, s.XM)
+			Y[k] = hf*Uf[k] + hr*Ur[k]
+		}
+		fft.Sequence(y, Y)
+		out := make([]float64, n)
+		for i := range out {
+			out[i] = y[i] / float64(nfft)
+		}
+		log.Columns = append(log.Columns, ingest.LogColumn{Name: s.Channel, Data: out})
+	}
+	finish(log, o, rng, rms)
+	return log, nil
+}
+
+// drive returns the front and rear pan accelerations over nfft samples
+// (unscaled), periodic over nfft, with no energy outside the band.
+func drive(fft *fourier.FFT, o Options, wheelbaseM float64, rng *rand.Rand) (uf, ur []float64) {
+	nfft := fft.Len()
+	if o.Drive == DriveSweep {
+		return sweep(nfft, o)
+	}
+	F := make([]complex128, nfft/2+1)
+	R := make([]complex128, nfft/2+1)
+	delayS := wheelbaseM / o.RoadSpeedMPerS
+	for k := range F {
+		f := fft.Freq(k) * o.RateHz
+		if f < o.BandLowHz || f > o.BandHighHz || k == 0 || 2*k == nfft {
+			continue
+		}
+		F[k] = complex(rng.NormFloat64(), rng.NormFloat64())
+		if o.Drive == DriveRoad {
+			R[k] = F[k] * complex(math.Cos(2*math.Pi*f*delayS), -math.Sin(2*math.Pi*f*delayS))
+		} else {
+			R[k] = complex(rng.NormFloat64(), rng.NormFloat64())
+		}
+	}
+	return fft.Sequence(nil, F), fft.Sequence(nil, R)
+}
+
+// sweep returns a logarithmic sine sweep from BandLowHz to BandHighHz in each
+// half of nfft samples (front and rear in phase, then in anti-phase), with
+// half-second cosine tapers at the ends of each sweep. Its energy outside the
+// band is small but not zero.
+func sweep(nfft int, o Options) (uf, ur []float64) {
+	uf = make([]float64, nfft)
+	ur = make([]float64, nfft)
+	half := nfft / 2
+	T := float64(half) / o.RateHz
+	k := math.Log(o.BandHighHz / o.BandLowHz)
+	taper := math.Min(0.5*o.RateHz, float64(half)/4)
+	for i := 0; i < half; i++ {
+		t := float64(i) / o.RateHz
+		phase := 2 * math.Pi * o.BandLowHz * T / k * (math.Exp(t/T*k) - 1)
+		w := 1.0
+		if e := math.Min(float64(i), float64(half-1-i)); e < taper {
+			w = 0.5 * (1 - math.Cos(math.Pi*e/taper))
+		}
+		s := w * math.Sin(phase)
+		uf[i], ur[i] = s, s
+		uf[half+i], ur[half+i] = s, -s
+	}
+	return uf, ur
+}
+
+func rms(x []float64) float64 {
+	var s float64
+	for _, v := range x {
+		s += v * v
+	}
+	return math.Sqrt(s / float64(len(x)))
+}
+
+func peak(x []float64) float64 {
+	var p float64
+	for _, v := range x {
+		p = math.Max(p, math.Abs(v))
+	}
+	return p
+}
+
+// finish adds noise (sized by level of the clean channel) and the offset to
+// every channel, in column order, and assigns the units.
+func finish(log *Log, o Options, rng *rand.Rand, level func([]float64) float64) {
+	for i := range log.Columns {
+		c := &log.Columns[i]
+		c.Unit = unitFor(o.Units, i)
+		sd := o.NoiseFraction * level(c.Data)
+		for j := range c.Data {
+			if sd > 0 {
+				c.Data[j] += sd * rng.NormFloat64()
+			}
+			c.Data[j] += o.OffsetMPerS2
+		}
+	}
+}
+
+// Drop simulates a drop test: the car rests on blocks for PreTriggerS, then
+// both axles drop by DropHeightM at once (a step of the pans) and the body
+// decays freely. Each [[sensor]] logs the body's vertical acceleration at its
+// x_m; nothing is logged at the pans.
+func Drop(v compare.Vehicle, sensors []ingest.Sensor, o Options) (*Log, error) {
+	if err := v.Validate(); err != nil {
+		return nil, err
+	}
+	if err := o.check(false); err != nil {
+		return nil, err
+	}
+	n := int(math.Round(o.DurationS * o.RateHz))
+	i0 := int(math.Round(o.PreTriggerS * o.RateHz))
+	dt := 1 / o.RateHz
+	A := v.StateMatrix()
+	var Adt, Phi mat.Dense
+	Adt.Scale(dt, A)
+	Phi.Exp(&Adt)
+	x := v.StepState(-o.DropHeightM, -o.DropHeightM)
+	acc := make([][2]float64, n)
+	for i := i0; i < n; i++ {
+		for r := 0; r < 2; r++ {
+			for c := 0; c < 4; c++ {
+				acc[i][r] += A.At(2+r, c) * x[c]
+			}
+		}
+		var next compare.State
+		for r := 0; r < 4; r++ {
+			for c := 0; c < 4; c++ {
+				next[r] += Phi.At(r, c) * x[c]
+			}
+		}
+		x = next
+	}
+	log := &Log{RateHz: o.RateHz, Notes: []string{
+		fmt.Sprintf("ridemodes simulate: drop test, %g m drop at %g s, %g s at %g Hz, seed %d, noise %g, offset %g m/s^2",
+			o.DropHeightM, float64(i0)*dt, o.DurationS, o.RateHz, o.Seed, o.NoiseFraction, o.OffsetMPerS2),
+		"synthetic data from the design model in the setup file; not a measurement",
+	}}
+	for _, s := range sensors {
+		w := make([]float64, n)
+		for i := range w {
+			w[i] = acc[i][0] - s.XM*acc[i][1]
+		}
+		log.Columns = append(log.Columns, ingest.LogColumn{Name: s.Channel, Data: w})
+	}
+	rng := rand.New(rand.NewPCG(o.Seed, 0x72696465))
+	finish(log, o, rng, peak)
+	return log, nil
+}

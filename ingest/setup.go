@@ -1,0 +1,338 @@
+package ingest
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+)
+
+// Setup is a validated setup file: the vehicle's design model, the body
+// sensors, the rig inputs and the analysis options, all in SI units.
+type Setup struct {
+	Path     string
+	Vehicle  VehicleSpec
+	Sensors  []Sensor
+	Inputs   []Input
+	Analysis Analysis
+}
+
+// VehicleSpec is the [vehicle] table. Optional values are NaN when absent.
+type VehicleSpec struct {
+	Name               string
+	MassKg             float64
+	PitchInertiaKgm2   float64 // given, or m r^2 from radius_of_gyration_m
+	CGToFrontM         float64 // a
+	CGToRearM          float64 // b
+	FrontRateNPerM     float64
+	RearRateNPerM      float64
+	FrontDampingNsPerM float64 // 0 when absent
+	RearDampingNsPerM  float64 // 0 when absent
+}
+
+// Sensor is one [[sensor]]: a vertical body accelerometer.
+type Sensor struct {
+	Channel string
+	XM      float64 // s of the sensor: positive forward of the CG
+}
+
+// Input is one [[input]]: a rig pan (actuator) acceleration.
+type Input struct {
+	Channel string
+	Axle    string // "front" or "rear"
+}
+
+// Analysis is the [analysis] table. Zero values mean "choose from the data".
+type Analysis struct {
+	SampleRateHz float64 // for logs without a time column
+	BandLowHz    float64
+	BandHighHz   float64
+	Window       string
+}
+
+// SetupError is a problem in a setup file. Line is 1-based (0 when the
+// problem belongs to no single line); Key is the dotted key, with the
+// 1-based entry number of an array table, e.g. "sensor[2].channel".
+type SetupError struct {
+	Path string
+	Line int
+	Key  string
+	Msg  string
+}
+
+func (e *SetupError) Error() string {
+	var b strings.Builder
+	b.WriteString(e.Path)
+	if e.Line > 0 {
+		fmt.Fprintf(&b, ":%d", e.Line)
+	}
+	if e.Key != "" {
+		fmt.Fprintf(&b, ": %s", e.Key)
+	}
+	b.WriteString(": ")
+	b.WriteString(e.Msg)
+	return b.String()
+}
+
+// ErrSetup is matched by errors.Is for every *SetupError.
+var ErrSetup = errors.New("invalid setup file")
+
+// Is makes errors.Is(err, ErrSetup) true for setup errors.
+func (e *SetupError) Is(target error) bool { return target == ErrSetup }
+
+// rawSetup mirrors the file; pointers tell absent from zero.
+type rawSetup struct {
+	Vehicle  *rawVehicle  `toml:"vehicle"`
+	Sensor   []rawSensor  `toml:"sensor"`
+	Input    []rawInput   `toml:"input"`
+	Analysis *rawAnalysis `toml:"analysis"`
+}
+
+type rawVehicle struct {
+	Name               *string  `toml:"name"`
+	MassKg             *float64 `toml:"mass_kg"`
+	PitchInertiaKgm2   *float64 `toml:"pitch_inertia_kgm2"`
+	RadiusOfGyrationM  *float64 `toml:"radius_of_gyration_m"`
+	CGToFrontAxleM     *float64 `toml:"cg_to_front_axle_m"`
+	CGToRearAxleM      *float64 `toml:"cg_to_rear_axle_m"`
+	FrontRateNPerM     *float64 `toml:"front_rate_n_per_m"`
+	RearRateNPerM      *float64 `toml:"rear_rate_n_per_m"`
+	FrontDampingNsPerM *float64 `toml:"front_damping_ns_per_m"`
+	RearDampingNsPerM  *float64 `toml:"rear_damping_ns_per_m"`
+}
+
+type rawSensor struct {
+	Channel *string  `toml:"channel"`
+	XM      *float64 `toml:"x_m"`
+}
+
+type rawInput struct {
+	Channel *string `toml:"channel"`
+	Axle    *string `toml:"axle"`
+}
+
+type rawAnalysis struct {
+	SampleRateHz *float64 `toml:"sample_rate_hz"`
+	BandLowHz    *float64 `toml:"band_low_hz"`
+	BandHighHz   *float64 `toml:"band_high_hz"`
+	Window       *string  `toml:"window"`
+}
+
+// LoadSetup reads and validates the setup file at path.
+func LoadSetup(path string) (*Setup, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("cannot read the setup file: %w", err)
+	}
+	return ParseSetup(path, data)
+}
+
+// ParseSetup decodes and validates a setup file's content; path names it in
+// messages. Decoding is strict: an unknown or misspelt key is an error that
+// names the key and its line.
+func ParseSetup(path string, data []byte) (*Setup, error) {
+	if bytes.IndexByte(data, 0) >= 0 {
+		return nil, &SetupError{Path: path, Msg: "the file holds binary data (NUL bytes); give a TOML text file"}
+	}
+	loc := newKeyLocator(data)
+	var raw rawSetup
+	md, err := toml.NewDecoder(bytes.NewReader(data)).Decode(&raw)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, &SetupError{Path: path, Line: pe.Position.Line, Key: pe.LastKey,
+				Msg: oneLine(pe.Message) + " (check the TOML syntax and the value's type)"}
+		}
+		return nil, &SetupError{Path: path, Msg: oneLine(err.Error())}
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		line, k := loc.first(und[0].String())
+		return nil, &SetupError{Path: path, Line: line, Key: k,
+			Msg: "unknown key; check its spelling and table against the setup reference"}
+	}
+	v := validator{path: path, loc: loc}
+	s := v.setup(&raw)
+	if v.err != nil {
+		return nil, v.err
+	}
+	s.Path = path
+	return s, nil
+}
+
+func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
+
+// validator records the first problem found.
+type validator struct {
+	path string
+	loc  *keyLocator
+	err  *SetupError
+}
+
+func (v *validator) fail(key, line string, format string, args ...any) {
+	if v.err != nil {
+		return
+	}
+	v.err = &SetupError{Path: v.path, Line: v.loc.line(line), Key: key, Msg: fmt.Sprintf(format, args...)}
+}
+
+// positive checks a required positive value; table is the locator path of its table.
+func (v *validator) positive(p *float64, table, key, what string) float64 {
+	full := table + "." + key
+	if p == nil {
+		v.fail(full, table, "missing; give %s", what)
+		return 0
+	}
+	if !(*p > 0) || math.IsInf(*p, 0) {
+		v.fail(full, full, "must be positive and finite (got %g); give %s", *p, what)
+	}
+	return *p
+}
+
+func (v *validator) nonNegative(p *float64, table, key, what string) float64 {
+	if p == nil {
+		return 0
+	}
+	full := table + "." + key
+	if !(*p >= 0) || math.IsInf(*p, 0) {
+		v.fail(full, full, "must be zero or positive and finite (got %g); give %s", *p, what)
+	}
+	return *p
+}
+
+func (v *validator) setup(raw *rawSetup) *Setup {
+	s := &Setup{}
+	if raw.Vehicle == nil {
+		v.fail("vehicle", "", "the [vehicle] table is missing; it gives the mass, inertia, axle positions and rates")
+		return s
+	}
+	rv := raw.Vehicle
+	vs := &s.Vehicle
+	if rv.Name != nil {
+		vs.Name = *rv.Name
+	}
+	vs.MassKg = v.positive(rv.MassKg, "vehicle", "mass_kg", "the sprung mass in kg")
+	switch {
+	case rv.PitchInertiaKgm2 != nil && rv.RadiusOfGyrationM != nil:
+		v.fail("vehicle.radius_of_gyration_m", "vehicle.radius_of_gyration_m",
+			"give either pitch_inertia_kgm2 or radius_of_gyration_m, not both")
+	case rv.PitchInertiaKgm2 != nil:
+		vs.PitchInertiaKgm2 = v.positive(rv.PitchInertiaKgm2, "vehicle", "pitch_inertia_kgm2",
+			"the pitch inertia about the CG in kg m^2")
+	case rv.RadiusOfGyrationM != nil:
+		r := v.positive(rv.RadiusOfGyrationM, "vehicle", "radius_of_gyration_m", "the pitch radius of gyration in m")
+		vs.PitchInertiaKgm2 = vs.MassKg * r * r
+	default:
+		v.fail("vehicle.pitch_inertia_kgm2", "vehicle",
+			"missing; give pitch_inertia_kgm2 (kg m^2) or radius_of_gyration_m (m)")
+	}
+	vs.CGToFrontM = v.positive(rv.CGToFrontAxleM, "vehicle", "cg_to_front_axle_m",
+		"the distance from the CG forward to the front axle in m")
+	vs.CGToRearM = v.positive(rv.CGToRearAxleM, "vehicle", "cg_to_rear_axle_m",
+		"the distance from the CG back to the rear axle in m")
+	vs.FrontRateNPerM = v.positive(rv.FrontRateNPerM, "vehicle", "front_rate_n_per_m",
+		"the front axle's ride rate in N/m (both wheels)")
+	vs.RearRateNPerM = v.positive(rv.RearRateNPerM, "vehicle", "rear_rate_n_per_m",
+		"the rear axle's ride rate in N/m (both wheels)")
+	vs.FrontDampingNsPerM = v.nonNegative(rv.FrontDampingNsPerM, "vehicle", "front_damping_ns_per_m",
+		"the front axle's damping in N s/m")
+	vs.RearDampingNsPerM = v.nonNegative(rv.RearDampingNsPerM, "vehicle", "rear_damping_ns_per_m",
+		"the rear axle's damping in N s/m")
+
+	seen := map[string]string{}
+	channel := func(p *string, key string) string {
+		if p == nil || strings.TrimSpace(*p) == "" {
+			v.fail(key, strings.TrimSuffix(key, ".channel"), "missing or empty; give the log column name")
+			return ""
+		}
+		c := strings.TrimSpace(*p)
+		if prev, dup := seen[c]; dup {
+			v.fail(key, key, "channel %q is already used by %s; each log column serves one sensor or input", c, prev)
+		}
+		seen[c] = strings.TrimSuffix(key, ".channel")
+		return c
+	}
+	if len(raw.Sensor) < 2 {
+		v.fail("sensor", "", "%d [[sensor]] tables; give at least two body accelerometers at different x_m", len(raw.Sensor))
+	}
+	for i, rs := range raw.Sensor {
+		key := fmt.Sprintf("sensor[%d]", i+1)
+		c := channel(rs.Channel, key+".channel")
+		if rs.XM == nil {
+			v.fail(key+".x_m", key, "missing; give the sensor's position in m, positive forward of the CG")
+			continue
+		}
+		if math.IsNaN(*rs.XM) || math.IsInf(*rs.XM, 0) {
+			v.fail(key+".x_m", key+".x_m", "must be finite")
+		}
+		s.Sensors = append(s.Sensors, Sensor{Channel: c, XM: *rs.XM})
+	}
+	if v.err == nil && len(s.Sensors) >= 2 {
+		distinct := false
+		for _, o := range s.Sensors[1:] {
+			if o.XM != s.Sensors[0].XM {
+				distinct = true
+			}
+		}
+		if !distinct {
+			v.fail("sensor[2].x_m", "sensor[2].x_m", "all sensors sit at the same x_m; pitch needs two positions along the body")
+		}
+	}
+	for i, ri := range raw.Input {
+		key := fmt.Sprintf("input[%d]", i+1)
+		c := channel(ri.Channel, key+".channel")
+		if ri.Axle == nil {
+			v.fail(key+".axle", key, `missing; give axle = "front" or "rear"`)
+			continue
+		}
+		ax := *ri.Axle
+		if ax != "front" && ax != "rear" {
+			v.fail(key+".axle", key+".axle", `must be "front" or "rear" (got %q)`, ax)
+		}
+		s.Inputs = append(s.Inputs, Input{Channel: c, Axle: ax})
+	}
+	if v.err == nil && len(s.Inputs) > 0 {
+		var f, r bool
+		for _, in := range s.Inputs {
+			f = f || in.Axle == "front"
+			r = r || in.Axle == "rear"
+		}
+		if !f || !r {
+			v.fail("input", "input[1]", "a rig test needs a front and a rear input; omit [[input]] entirely for a drop test")
+		}
+	}
+	if ra := raw.Analysis; ra != nil {
+		a := &s.Analysis
+		a.SampleRateHz = v.nonNegative(ra.SampleRateHz, "analysis", "sample_rate_hz", "the log's sample rate in Hz")
+		a.BandLowHz = v.nonNegative(ra.BandLowHz, "analysis", "band_low_hz", "the lower edge of the analysis band in Hz")
+		a.BandHighHz = v.nonNegative(ra.BandHighHz, "analysis", "band_high_hz", "the upper edge of the analysis band in Hz")
+		if a.BandHighHz > 0 && a.BandLowHz >= a.BandHighHz {
+			v.fail("analysis.band_high_hz", "analysis.band_high_hz",
+				"must exceed band_low_hz (%g Hz); the band runs from band_low_hz to band_high_hz", a.BandLowHz)
+		}
+		if ra.Window != nil {
+			a.Window = *ra.Window
+			if !KnownWindow(a.Window) {
+				v.fail("analysis.window", "analysis.window", "unknown window %q; use one of %s",
+					a.Window, strings.Join(Windows, ", "))
+			}
+		}
+	}
+	return s
+}
+
+// Windows lists the spectral window names a setup may give.
+var Windows = []string{"hann", "hamming", "flattop", "rectangular"}
+
+// KnownWindow reports whether name is in Windows.
+func KnownWindow(name string) bool {
+	for _, w := range Windows {
+		if w == name {
+			return true
+		}
+	}
+	return false
+}

@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"regexp"
+	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
@@ -143,11 +145,24 @@ func ParseSetup(path string, data []byte) (*Setup, error) {
 	md, err := toml.NewDecoder(bytes.NewReader(data)).Decode(&raw)
 	if err != nil {
 		var pe toml.ParseError
-		if errors.As(err, &pe) {
-			return nil, &SetupError{Path: path, Line: pe.Position.Line, Key: pe.LastKey,
-				Msg: oneLine(pe.Message) + " (check the TOML syntax and the value's type)"}
+		if ppe := (*toml.ParseError)(nil); errors.As(err, &ppe) {
+			pe = *ppe
+		} else if !errors.As(err, &pe) {
+			// Type mismatches come as plain errors: "toml: line N (last key "k"): message".
+			m := typeErrorText.FindStringSubmatch(oneLine(err.Error()))
+			if m == nil {
+				return nil, &SetupError{Path: path, Msg: oneLine(err.Error())}
+			}
+			line, _ := strconv.Atoi(m[1])
+			return nil, &SetupError{Path: path, Line: line, Key: m[2], Msg: m[3] + "; check the value's type (numbers unquoted, names in quotes)"}
 		}
-		return nil, &SetupError{Path: path, Msg: oneLine(err.Error())}
+		// The decoder's last key is only the culprit when it sits on the error's line.
+		key := pe.LastKey
+		if loc.line(key) != pe.Position.Line {
+			key = ""
+		}
+		return nil, &SetupError{Path: path, Line: pe.Position.Line, Key: key,
+			Msg: oneLine(pe.Message) + " (check the TOML syntax and the value's type)"}
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		line, k := loc.first(und[0].String())
@@ -162,6 +177,8 @@ func ParseSetup(path string, data []byte) (*Setup, error) {
 	s.Path = path
 	return s, nil
 }
+
+var typeErrorText = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]*)"\): (.*)$`)
 
 func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
 

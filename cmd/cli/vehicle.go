@@ -1,10 +1,13 @@
-package compare
+package cli
 
-import "github.com/ridemodes/ridemodes/ingest"
+import (
+	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/ingest"
+)
 
-// FromSpec returns the design model of a setup file's [vehicle] table.
-func FromSpec(s ingest.VehicleSpec) Vehicle {
-	return Vehicle{
+// vehicleOf returns the design model of a setup file's [vehicle] table.
+func vehicleOf(s ingest.VehicleSpec) compare.Vehicle {
+	return compare.Vehicle{
 		MassKg: s.MassKg, PitchInertiaKgm2: s.PitchInertiaKgm2,
 		CGToFrontM: s.CGToFrontM, CGToRearM: s.CGToRearM,
 		FrontRateNPerM: s.FrontRateNPerM, RearRateNPerM: s.RearRateNPerM,

@@ -1,0 +1,139 @@
+package cli
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+const exampleSetup = "../../testdata/example/hatchback.toml"
+
+// run drives the command line as a user would and returns the exit code and outputs.
+func run(t *testing.T, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := Execute(args, &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+func TestModelTable(t *testing.T) {
+	code, out, errs := run(t, "model", "--setup", exampleSetup)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"bounce", "pitch", "f_n [Hz]", "node [m]", "behind the CG", "ahead of the CG"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("table lacks %q:\n%s", want, out)
+		}
+	}
+}
+
+func TestModelJSON(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "model.json")
+	if code, _, errs := run(t, "model", "--setup", exampleSetup, "--json", path); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var res struct {
+		Tool  struct{ Name, Version string }
+		Model struct {
+			Modes []map[string]any
+		}
+		Warnings []string
+	}
+	if err := json.Unmarshal(data, &res); err != nil {
+		t.Fatal(err)
+	}
+	if res.Tool.Name != "ridemodes" || len(res.Model.Modes) != 2 || res.Warnings == nil {
+		t.Fatalf("result %s", data)
+	}
+	for _, key := range []string{"label", "natural_frequency_hz", "damped_frequency_hz", "damping_ratio",
+		"pitch_per_bounce_rad_per_m", "node_m", "method"} {
+		if _, ok := res.Model.Modes[0][key]; !ok {
+			t.Errorf("mode lacks the contract key %q", key)
+		}
+	}
+}
+
+func TestSimulateWritesLogs(t *testing.T) {
+	dir := t.TempDir()
+	for _, test := range []string{"rig", "drop"} {
+		path := filepath.Join(dir, test+".csv")
+		code, out, errs := run(t, "simulate", "--setup", exampleSetup, "--test", test, "--out", path,
+			"--duration", "20", "--noise", "0.02", "--seed", "3")
+		if code != 0 {
+			t.Fatalf("%s: exit %d: %s", test, code, errs)
+		}
+		if !strings.Contains(out, "wrote "+path) {
+			t.Errorf("%s: output %q", test, out)
+		}
+		data, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.HasPrefix(data, []byte("# ridemodes simulate: "+test)) {
+			t.Errorf("%s: log starts %q", test, data[:60])
+		}
+	}
+}
+
+func TestExitCodesAndNoLeftovers(t *testing.T) {
+	dir := t.TempDir()
+	bad := filepath.Join(dir, "bad.toml")
+	if err := os.WriteFile(bad, []byte("[vehicle]\nmass_kg = -1\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "out.csv")
+	cases := []struct {
+		args []string
+		code int
+		msg  string
+	}{
+		{[]string{"model"}, exitUsage, "required flag"},
+		{[]string{"model", "--setup", exampleSetup, "extra"}, exitUsage, "unknown command"},
+		{[]string{"model", "--setup", exampleSetup, "--colour"}, exitUsage, "unknown flag"},
+		{[]string{"frobnicate"}, exitUsage, "unknown command"},
+		{[]string{"simulate", "--setup", exampleSetup, "--test", "crash", "--out", out}, exitUsage, "--test must be"},
+		{[]string{"model", "--setup", bad}, exitData, "bad.toml:2: vehicle.mass_kg"},
+		{[]string{"model", "--setup", filepath.Join(dir, "missing.toml")}, exitData, "cannot read"},
+		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", out, "--rate", "-5"}, exitData, "sample rate"},
+		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", filepath.Join(dir, "no", "such", "dir.csv")}, exitData, "cannot write"},
+	}
+	for _, c := range cases {
+		code, _, errs := run(t, c.args...)
+		if code != c.code || !strings.Contains(errs, c.msg) {
+			t.Errorf("%v: exit %d, stderr %q; want exit %d and %q", c.args, code, errs, c.code, c.msg)
+		}
+	}
+	entries, _ := os.ReadDir(dir)
+	for _, e := range entries {
+		if e.Name() != "bad.toml" {
+			t.Errorf("left behind: %s", e.Name())
+		}
+	}
+}
+
+func TestVersionAndCompletion(t *testing.T) {
+	code, out, _ := run(t, "--version")
+	if code != 0 || !strings.HasPrefix(out, "ridemodes ") {
+		t.Fatalf("--version: %d %q", code, out)
+	}
+	code, out, _ = run(t, "completion", "bash")
+	if code != 0 || !strings.Contains(out, "bash completion") {
+		t.Fatalf("completion: %d", code)
+	}
+}
+
+func TestHelpCarriesCautions(t *testing.T) {
+	_, out, _ := run(t, "simulate", "--help")
+	if !strings.Contains(out, "Safety: rig and drop tests can hurt people") || !strings.Contains(out, "licensed practice") {
+		t.Errorf("simulate --help lacks the cautions:\n%s", out)
+	}
+}

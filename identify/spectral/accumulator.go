@@ -1,0 +1,299 @@
+package spectral
+
+import (
+	"fmt"
+	"math"
+	"sync"
+
+	"gonum.org/v1/gonum/dsp/fourier"
+	"gonum.org/v1/gonum/floats"
+)
+
+// parallelSegmentLen is the shortest segment for which two worker lanes
+// paid on the two-core build machine (BenchmarkAccumulate: 1.35x at N = 4096,
+// 1.5x at 16384; below 4096 the goroutine hand-off per segment costs more
+// than it saves).
+const parallelSegmentLen = 4096
+
+// defaultWorkers is the number of lanes used when Config.Workers is zero:
+// 2 from parallelSegmentLen up, else 1. It depends on the segment length
+// only, never on the machine, so results stay bit-reproducible.
+func defaultWorkers(segmentLen int) int {
+	if segmentLen >= parallelSegmentLen {
+		return 2
+	}
+	return 1
+}
+
+// Config sets up a Welch estimate.
+type Config struct {
+	FsHz       float64 // sample rate [Hz]
+	SegmentLen int     // samples per segment N (the FFT length)
+	Overlap    int     // samples shared by consecutive segments; SegmentLen/2 is scipy's default
+	Window     Window
+	Detrend    Detrend
+	// Workers is the number of lanes that transform segments concurrently;
+	// segment k always goes to lane k mod Workers and the lanes' sums are
+	// added in lane order, so the result is bit-reproducible for a given
+	// Workers whatever the scheduling. Zero chooses by segment length (two
+	// lanes from 4096 samples up, where it was measured to pay).
+	Workers int
+}
+
+func (c Config) validate() error {
+	switch {
+	case !(c.FsHz > 0) || math.IsInf(c.FsHz, 0):
+		return fmt.Errorf("spectral: sample rate %g Hz, need a positive finite rate", c.FsHz)
+	case c.SegmentLen < 2:
+		return fmt.Errorf("spectral: segment length %d, need at least 2 samples", c.SegmentLen)
+	case c.Overlap < 0 || c.Overlap >= c.SegmentLen:
+		return fmt.Errorf("spectral: overlap %d samples, need 0 <= overlap < segment length %d", c.Overlap, c.SegmentLen)
+	case c.Workers < 0:
+		return fmt.Errorf("spectral: %d workers, need zero (default) or more", c.Workers)
+	}
+	return nil
+}
+
+// Accumulator builds Welch-averaged auto and cross spectra of several
+// channels from a stream of sample blocks in constant memory: it keeps one
+// segment per channel and the running sums of the spectral matrix.
+//
+// References:
+//   - P. D. Welch, "The use of fast Fourier transform for the estimation of
+//     power spectra: a method based on time averaging over short, modified
+//     periodograms", IEEE Trans. Audio Electroacoust. AU-15(2):70-73, 1967,
+//     doi:10.1109/TAU.1967.1161901.
+//   - J. S. Bendat and A. G. Piersol, Random Data, 4th ed., Wiley, 2010,
+//     Sec. 11.5 (spectral density estimates by segment averaging).
+type Accumulator struct {
+	cfg      Config
+	channels []string
+	win      []float64
+	index    []float64 // 0..N-1 for the linear detrend
+	hop      int
+	nFreq    int
+
+	buf  [][]float64 // [channel][N]: the segment being filled
+	fill int
+
+	lanes    []*lane
+	wg       sync.WaitGroup
+	pending  int // lanes holding a segment not yet transformed
+	segments int
+	samples  int
+	err      error
+}
+
+// lane transforms segments and sums their cross products; each worker owns
+// one, so no buffer is shared between goroutines. The FFT is gonum's
+// dsp/fourier with its plan and output reused: BenchmarkFFT measured it 2-4x
+// faster than go-dsp's FFTReal at powers of two (256..16384) and 10-30x at
+// other lengths, with no allocations.
+type lane struct {
+	fft  *fourier.FFT
+	seg  [][]float64    // [channel][N]
+	coef [][]complex128 // [channel][nFreq]
+	sum  []complex128   // [f][i][j] flat, upper triangle i <= j
+}
+
+// NewAccumulator returns an Accumulator for the named channels; the order of
+// channels is the order of the slices given to Write.
+func NewAccumulator(cfg Config, channels []string) (*Accumulator, error) {
+	if err := cfg.validate(); err != nil {
+		return nil, err
+	}
+	if len(channels) == 0 {
+		return nil, fmt.Errorf("spectral: no channels")
+	}
+	if cfg.Workers == 0 {
+		cfg.Workers = defaultWorkers(cfg.SegmentLen)
+	}
+	win, err := cfg.Window.Values(cfg.SegmentLen, cfg.FsHz)
+	if err != nil {
+		return nil, err
+	}
+	if floats.Dot(win, win) == 0 {
+		return nil, fmt.Errorf("spectral: window %v is zero over the %d-sample segment", cfg.Window, cfg.SegmentLen)
+	}
+	n, nch := cfg.SegmentLen, len(channels)
+	a := &Accumulator{
+		cfg:      cfg,
+		channels: append([]string(nil), channels...),
+		win:      win,
+		index:    make([]float64, n),
+		hop:      n - cfg.Overlap,
+		nFreq:    n/2 + 1,
+		buf:      newMatrix(nch, n),
+		lanes:    make([]*lane, cfg.Workers),
+	}
+	for i := range a.index {
+		a.index[i] = float64(i)
+	}
+	for i := range a.lanes {
+		l := &lane{
+			fft:  fourier.NewFFT(n),
+			seg:  newMatrix(nch, n),
+			coef: make([][]complex128, nch),
+			sum:  make([]complex128, a.nFreq*nch*nch),
+		}
+		for ch := range l.coef {
+			l.coef[ch] = make([]complex128, a.nFreq)
+		}
+		a.lanes[i] = l
+	}
+	return a, nil
+}
+
+func newMatrix(rows, cols int) [][]float64 {
+	m := make([][]float64, rows)
+	for i := range m {
+		m[i] = make([]float64, cols)
+	}
+	return m
+}
+
+// Write adds a block of samples, one slice per channel in SI units, all of
+// the same (arbitrary) length. It panics if the block does not match the
+// channels. A NaN or infinite sample is remembered and reported by Spectra.
+func (a *Accumulator) Write(block [][]float64) {
+	if len(block) != len(a.buf) {
+		panic(fmt.Sprintf("spectral: block has %d channels, accumulator has %d", len(block), len(a.buf)))
+	}
+	m := len(block[0])
+	for ch, x := range block {
+		if len(x) != m {
+			panic(fmt.Sprintf("spectral: channel %d of the block has %d samples, channel 0 has %d", ch, len(x), m))
+		}
+		if a.err == nil {
+			a.checkFinite(ch, x)
+		}
+	}
+	n := a.cfg.SegmentLen
+	for off := 0; off < m; {
+		k := min(n-a.fill, m-off)
+		for ch, x := range block {
+			copy(a.buf[ch][a.fill:], x[off:off+k])
+		}
+		a.fill += k
+		off += k
+		if a.fill == n {
+			a.takeSegment()
+		}
+	}
+	a.samples += m
+}
+
+func (a *Accumulator) checkFinite(ch int, x []float64) {
+	for i, v := range x {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			a.err = &NonFiniteError{Channel: ch, Sample: a.samples + i, Value: v}
+			return
+		}
+	}
+}
+
+// takeSegment hands the full segment to the next lane and keeps the overlap.
+func (a *Accumulator) takeSegment() {
+	l := a.lanes[a.pending]
+	for ch, x := range a.buf {
+		copy(l.seg[ch], x)
+		copy(x, x[a.hop:])
+	}
+	a.fill = a.cfg.SegmentLen - a.hop
+	a.pending++
+	a.segments++
+	if a.pending == len(a.lanes) {
+		a.flush()
+	}
+}
+
+// flush transforms the pending segments, one goroutine per extra lane.
+func (a *Accumulator) flush() {
+	if a.pending == 0 {
+		return
+	}
+	for _, l := range a.lanes[1:a.pending] {
+		a.wg.Go(func() { l.process(a) })
+	}
+	a.lanes[0].process(a)
+	a.wg.Wait()
+	a.pending = 0
+}
+
+// process detrends, windows and transforms the lane's segment and adds the
+// cross products conj(X_i) X_j to the lane's sums.
+func (l *lane) process(a *Accumulator) {
+	for ch, x := range l.seg {
+		a.cfg.Detrend.apply(x, a.index)
+		floats.Mul(x, a.win)
+		l.fft.Coefficients(l.coef[ch], x)
+	}
+	nch := len(l.seg)
+	for f := 0; f < a.nFreq; f++ {
+		row := l.sum[f*nch*nch:]
+		for i := 0; i < nch; i++ {
+			xi := l.coef[i][f]
+			ci := complex(real(xi), -imag(xi))
+			for j := i; j < nch; j++ {
+				row[i*nch+j] += ci * l.coef[j][f]
+			}
+		}
+	}
+}
+
+// Spectra returns the estimate from the whole segments written so far
+// (writing may continue afterwards). It fails with a NonFiniteError if a bad
+// sample was written and with a ShortRecordError before the first whole
+// segment.
+func (a *Accumulator) Spectra() (*Spectra, error) {
+	if a.err != nil {
+		return nil, a.err
+	}
+	a.flush()
+	if a.segments == 0 {
+		return nil, &ShortRecordError{Samples: a.samples, SegmentLen: a.cfg.SegmentLen, Need: 1}
+	}
+	n, nch := a.cfg.SegmentLen, len(a.buf)
+	fs := a.cfg.FsHz
+	scale := 1 / (fs * floats.Dot(a.win, a.win) * float64(a.segments))
+	s := &Spectra{
+		Channels:          append([]string(nil), a.channels...),
+		FsHz:              fs,
+		SegmentLen:        n,
+		Overlap:           a.cfg.Overlap,
+		Window:            a.cfg.Window,
+		Detrend:           a.cfg.Detrend,
+		Segments:          a.segments,
+		EffectiveAverages: effectiveAverages(a.win, a.hop, a.segments),
+		NoiseBandwidthHz:  noiseBandwidthBins(a.win) * fs / float64(n),
+		FreqsHz:           make([]float64, a.nFreq),
+		G:                 make([][][]complex128, a.nFreq),
+	}
+	for f := range s.G {
+		s.FreqsHz[f] = float64(f) * fs / float64(n)
+		c := 2 * scale
+		if f == 0 || (n%2 == 0 && f == n/2) {
+			c = scale
+		}
+		g := make([][]complex128, nch)
+		for i := range g {
+			g[i] = make([]complex128, nch)
+		}
+		for i := 0; i < nch; i++ {
+			for j := i; j < nch; j++ {
+				var v complex128
+				for _, l := range a.lanes {
+					v += l.sum[f*nch*nch+i*nch+j]
+				}
+				v *= complex(c, 0)
+				if i == j {
+					v = complex(real(v), 0)
+				}
+				g[i][j] = v
+				g[j][i] = complex(real(v), -imag(v))
+			}
+		}
+		s.G[f] = g
+	}
+	return s, nil
+}

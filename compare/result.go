@@ -60,6 +60,17 @@ type ModeJSON struct {
 	NodeM                   *float64     `json:"node_m"`
 	Uncertainty             *Uncertainty `json:"uncertainty,omitempty"`
 	Method                  string       `json:"method"`
+	// SensorShape is the complex mode shape at the body sensors, when the
+	// identification gives one (any common scale and phase).
+	SensorShape []SensorShapeJSON `json:"sensor_shape,omitempty"`
+}
+
+// SensorShapeJSON is a mode shape's complex vertical motion re + i im at the
+// sensor at x_m (m from the CG, positive forward).
+type SensorShapeJSON struct {
+	XM float64 `json:"x_m"`
+	Re float64 `json:"re"`
+	Im float64 `json:"im"`
 }
 
 // Uncertainty holds one standard deviation of each estimated value.
@@ -77,6 +88,14 @@ type Comparison struct {
 	PredictedHz   float64 `json:"predicted_hz"`
 	DifferencePct float64 `json:"difference_pct"`
 	MAC           float64 `json:"mac"`
+	// ShapeMeasured is false when the measured mode has no shape; MAC is then 0.
+	ShapeMeasured                  bool     `json:"shape_measured"`
+	MeasuredDampingRatio           *float64 `json:"measured_damping_ratio"`
+	PredictedDampingRatio          float64  `json:"predicted_damping_ratio"`
+	MeasuredPitchPerBounceRadPerM  *float64 `json:"measured_pitch_per_bounce_rad_per_m"`
+	PredictedPitchPerBounceRadPerM *float64 `json:"predicted_pitch_per_bounce_rad_per_m"`
+	MeasuredNodeM                  *float64 `json:"measured_node_m"`
+	PredictedNodeM                 *float64 `json:"predicted_node_m"`
 }
 
 // Updated holds back-calculated effective rates and damping.
@@ -85,6 +104,68 @@ type Updated struct {
 	RearRateNPerM      float64 `json:"rear_rate_n_per_m"`
 	FrontDampingNsPerM float64 `json:"front_damping_ns_per_m"`
 	RearDampingNsPerM  float64 `json:"rear_damping_ns_per_m"`
+	// DampingEstimated is false when no damping was measured; the damping
+	// values are then 0 and mean nothing.
+	DampingEstimated bool `json:"damping_estimated"`
+	// PitchInertiaKgm2 is the updated pitch inertia when it was freed.
+	PitchInertiaKgm2 *float64 `json:"pitch_inertia_kgm2,omitempty"`
+	// Method names the solution: closed form (undamped or damped) or
+	// weighted least squares.
+	Method string `json:"method"`
+	// RootChoice says how the root was chosen among the closed-form roots.
+	RootChoice string `json:"root_choice"`
+	// ClosedForm is the chosen closed-form root, when the least squares
+	// started from it.
+	ClosedForm *RatesJSON `json:"closed_form,omitempty"`
+	// OtherRoots are the closed-form roots not chosen.
+	OtherRoots []RatesJSON `json:"other_roots"`
+	// Uncertainty holds one standard deviation of each updated value,
+	// propagated from the modal uncertainties; absent when none were given.
+	Uncertainty *UpdatedUncertainty `json:"uncertainty,omitempty"`
+	// Residual is the misfit of a least-squares update.
+	Residual *FitResidual `json:"residual,omitempty"`
+	// FrontSpringRateNPerM and RearSpringRateNPerM are the axle spring rates
+	// that would give the updated ride rates, for an axle whose setup gives
+	// its spring rate (same motion ratio and tyre rate).
+	FrontSpringRateNPerM *float64 `json:"front_spring_rate_n_per_m,omitempty"`
+	RearSpringRateNPerM  *float64 `json:"rear_spring_rate_n_per_m,omitempty"`
+}
+
+// RatesJSON is one set of rates and damping.
+type RatesJSON struct {
+	FrontRateNPerM     float64 `json:"front_rate_n_per_m"`
+	RearRateNPerM      float64 `json:"rear_rate_n_per_m"`
+	FrontDampingNsPerM float64 `json:"front_damping_ns_per_m"`
+	RearDampingNsPerM  float64 `json:"rear_damping_ns_per_m"`
+}
+
+// UpdatedUncertainty holds one standard deviation of each updated value.
+type UpdatedUncertainty struct {
+	FrontRateNPerM     float64  `json:"front_rate_n_per_m"`
+	RearRateNPerM      float64  `json:"rear_rate_n_per_m"`
+	FrontDampingNsPerM *float64 `json:"front_damping_ns_per_m,omitempty"`
+	RearDampingNsPerM  *float64 `json:"rear_damping_ns_per_m,omitempty"`
+	PitchInertiaKgm2   *float64 `json:"pitch_inertia_kgm2,omitempty"`
+	// NominalWeights is true when some measured values had no standard
+	// deviation and nominal ones were used: the uncertainties are then
+	// indicative only.
+	NominalWeights bool `json:"nominal_weights"`
+}
+
+// FitResidual is the misfit of a weighted least-squares update.
+type FitResidual struct {
+	ChiSquare        float64       `json:"chi_square"`
+	DegreesOfFreedom int           `json:"degrees_of_freedom"`
+	Observations     []Observation `json:"observations"`
+}
+
+// Observation is one measured value against the updated model's.
+type Observation struct {
+	Name       string  `json:"name"`
+	Measured   float64 `json:"measured"`
+	Fitted     float64 `json:"fitted"`
+	Sigma      float64 `json:"sigma"`
+	Normalised float64 `json:"normalised_residual"` // (fitted - measured)/sigma
 }
 
 // Check is one verdict or guidance item.

@@ -21,6 +21,8 @@ type Setup struct {
 	Sensors  []Sensor
 	Inputs   []Input
 	Analysis Analysis
+	Targets  Targets
+	Update   UpdateSpec
 }
 
 // VehicleSpec is the [vehicle] table. Optional values are NaN when absent.
@@ -34,6 +36,72 @@ type VehicleSpec struct {
 	RearRateNPerM      float64
 	FrontDampingNsPerM float64 // 0 when absent
 	RearDampingNsPerM  float64 // 0 when absent
+	// FrontBuildUp and RearBuildUp are the spring, motion ratio and tyre
+	// behind an axle's ride rate when the setup gives them instead of the
+	// ride rate (nil otherwise); FrontRateNPerM and RearRateNPerM then hold
+	// the ride rate they combine into.
+	FrontBuildUp *RideRateBuildUp
+	RearBuildUp  *RideRateBuildUp
+}
+
+// RideRateBuildUp is one axle's suspension spring, its motion ratio and the
+// tyres, per axle (both wheels together) like every rate of the setup.
+//
+// The motion ratio is spring travel per wheel travel (dimensionless, usually
+// below 1 when the spring sits inboard of the wheel), so that by virtual work
+// the wheel rate is the spring rate times the ratio squared. The ride rate is
+// the wheel rate and the tyre rate in series.
+//
+// References: T. D. Gillespie, Fundamentals of Vehicle Dynamics, SAE, 1992,
+// chapter 5 (ride rate, wheel rate and installation ratio).
+type RideRateBuildUp struct {
+	SpringRateNPerM           float64 // both springs of the axle, along the spring
+	MotionRatioSpringPerWheel float64 // spring travel / wheel travel
+	TyreRateNPerM             float64 // both tyres; +Inf when not given (a rigid tyre)
+}
+
+// WheelRateNPerM returns the spring rate times the motion ratio squared.
+func (b RideRateBuildUp) WheelRateNPerM() float64 {
+	return b.SpringRateNPerM * b.MotionRatioSpringPerWheel * b.MotionRatioSpringPerWheel
+}
+
+// RideRateNPerM returns the wheel rate and the tyre rate in series,
+// kw kt/(kw + kt); the wheel rate itself for a rigid tyre.
+func (b RideRateBuildUp) RideRateNPerM() float64 {
+	kw := b.WheelRateNPerM()
+	if math.IsInf(b.TyreRateNPerM, 1) {
+		return kw
+	}
+	return kw * b.TyreRateNPerM / (kw + b.TyreRateNPerM)
+}
+
+// Targets is the [targets] table: tolerances for the pass/fail verdict of a
+// measurement against the design model. Absent values are NaN (no check).
+type Targets struct {
+	// BounceFrequencyTolerancePct and PitchFrequencyTolerancePct bound the
+	// measured natural frequency's difference from the model's, in percent
+	// of the model's.
+	BounceFrequencyTolerancePct float64
+	PitchFrequencyTolerancePct  float64
+	// DampingRatioTolerance bounds the absolute difference of each mode's
+	// measured damping ratio from the model's (e.g. 0.05).
+	DampingRatioTolerance float64
+	// RideRateTolerancePct bounds each back-calculated axle ride rate's
+	// difference from the design rate, in percent of the design rate.
+	RideRateTolerancePct float64
+	// AxleDampingTolerancePct does the same for the back-calculated axle damping.
+	AxleDampingTolerancePct float64
+	// ModeShapeMACMin is the least MAC of each measured mode shape with the
+	// model's (0 to 1).
+	ModeShapeMACMin float64
+}
+
+// UpdateSpec is the [update] table: how the model is updated to the
+// measured modes.
+type UpdateSpec struct {
+	// FreePitchInertia lets the least-squares update fit the pitch inertia
+	// as well as the rates (it needs measured mode shapes).
+	FreePitchInertia bool
 }
 
 // Sensor is one [[sensor]]: a vertical body accelerometer.
@@ -92,6 +160,8 @@ type rawSetup struct {
 	Sensor   []rawSensor  `toml:"sensor"`
 	Input    []rawInput   `toml:"input"`
 	Analysis *rawAnalysis `toml:"analysis"`
+	Targets  *rawTargets  `toml:"targets"`
+	Update   *rawUpdate   `toml:"update"`
 }
 
 type rawVehicle struct {
@@ -105,6 +175,13 @@ type rawVehicle struct {
 	RearRateNPerM      *float64 `toml:"rear_rate_n_per_m"`
 	FrontDampingNsPerM *float64 `toml:"front_damping_ns_per_m"`
 	RearDampingNsPerM  *float64 `toml:"rear_damping_ns_per_m"`
+
+	FrontSpringRateNPerM           *float64 `toml:"front_spring_rate_n_per_m"`
+	RearSpringRateNPerM            *float64 `toml:"rear_spring_rate_n_per_m"`
+	FrontMotionRatioSpringPerWheel *float64 `toml:"front_motion_ratio_spring_per_wheel"`
+	RearMotionRatioSpringPerWheel  *float64 `toml:"rear_motion_ratio_spring_per_wheel"`
+	FrontTyreRateNPerM             *float64 `toml:"front_tyre_rate_n_per_m"`
+	RearTyreRateNPerM              *float64 `toml:"rear_tyre_rate_n_per_m"`
 }
 
 type rawSensor struct {
@@ -122,6 +199,19 @@ type rawAnalysis struct {
 	BandLowHz    *float64 `toml:"band_low_hz"`
 	BandHighHz   *float64 `toml:"band_high_hz"`
 	Window       *string  `toml:"window"`
+}
+
+type rawTargets struct {
+	BounceFrequencyTolerancePct *float64 `toml:"bounce_frequency_tolerance_pct"`
+	PitchFrequencyTolerancePct  *float64 `toml:"pitch_frequency_tolerance_pct"`
+	DampingRatioTolerance       *float64 `toml:"damping_ratio_tolerance"`
+	RideRateTolerancePct        *float64 `toml:"ride_rate_tolerance_pct"`
+	AxleDampingTolerancePct     *float64 `toml:"axle_damping_tolerance_pct"`
+	ModeShapeMACMin             *float64 `toml:"mode_shape_mac_min"`
+}
+
+type rawUpdate struct {
+	FreePitchInertia *bool `toml:"free_pitch_inertia"`
 }
 
 // LoadSetup reads and validates the setup file at path.
@@ -250,10 +340,10 @@ func (v *validator) setup(raw *rawSetup) *Setup {
 		"the distance from the CG forward to the front axle in m")
 	vs.CGToRearM = v.positive(rv.CGToRearAxleM, "vehicle", "cg_to_rear_axle_m",
 		"the distance from the CG back to the rear axle in m")
-	vs.FrontRateNPerM = v.positive(rv.FrontRateNPerM, "vehicle", "front_rate_n_per_m",
-		"the front axle's ride rate in N/m (both wheels)")
-	vs.RearRateNPerM = v.positive(rv.RearRateNPerM, "vehicle", "rear_rate_n_per_m",
-		"the rear axle's ride rate in N/m (both wheels)")
+	vs.FrontRateNPerM, vs.FrontBuildUp = v.rideRate("front", rv.FrontRateNPerM, rv.FrontSpringRateNPerM,
+		rv.FrontMotionRatioSpringPerWheel, rv.FrontTyreRateNPerM)
+	vs.RearRateNPerM, vs.RearBuildUp = v.rideRate("rear", rv.RearRateNPerM, rv.RearSpringRateNPerM,
+		rv.RearMotionRatioSpringPerWheel, rv.RearTyreRateNPerM)
 	vs.FrontDampingNsPerM = v.nonNegative(rv.FrontDampingNsPerM, "vehicle", "front_damping_ns_per_m",
 		"the front axle's damping in N s/m")
 	vs.RearDampingNsPerM = v.nonNegative(rv.RearDampingNsPerM, "vehicle", "rear_damping_ns_per_m",
@@ -338,7 +428,80 @@ func (v *validator) setup(raw *rawSetup) *Setup {
 			}
 		}
 	}
+	if rt := raw.Targets; rt != nil {
+		t := &s.Targets
+		t.BounceFrequencyTolerancePct = v.optionalPositive(rt.BounceFrequencyTolerancePct, "targets",
+			"bounce_frequency_tolerance_pct", "the allowed bounce frequency difference in percent of the model's")
+		t.PitchFrequencyTolerancePct = v.optionalPositive(rt.PitchFrequencyTolerancePct, "targets",
+			"pitch_frequency_tolerance_pct", "the allowed pitch frequency difference in percent of the model's")
+		t.DampingRatioTolerance = v.optionalPositive(rt.DampingRatioTolerance, "targets",
+			"damping_ratio_tolerance", "the allowed absolute damping ratio difference, e.g. 0.05")
+		t.RideRateTolerancePct = v.optionalPositive(rt.RideRateTolerancePct, "targets",
+			"ride_rate_tolerance_pct", "the allowed ride rate difference in percent of the design rate")
+		t.AxleDampingTolerancePct = v.optionalPositive(rt.AxleDampingTolerancePct, "targets",
+			"axle_damping_tolerance_pct", "the allowed axle damping difference in percent of the design damping")
+		t.ModeShapeMACMin = v.optionalPositive(rt.ModeShapeMACMin, "targets",
+			"mode_shape_mac_min", "the least acceptable MAC, between 0 and 1")
+		if t.ModeShapeMACMin > 1 {
+			v.fail("targets.mode_shape_mac_min", "targets.mode_shape_mac_min",
+				"must not exceed 1 (got %g); a MAC runs from 0 to 1", t.ModeShapeMACMin)
+		}
+	} else {
+		s.Targets = Targets{math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN()}
+	}
+	if ru := raw.Update; ru != nil && ru.FreePitchInertia != nil {
+		s.Update.FreePitchInertia = *ru.FreePitchInertia
+	}
 	return s
+}
+
+// optionalPositive checks an optional positive value; NaN when absent.
+func (v *validator) optionalPositive(p *float64, table, key, what string) float64 {
+	if p == nil {
+		return math.NaN()
+	}
+	return v.positive(p, table, key, what)
+}
+
+// rideRate returns an axle's ride rate, given directly or built up from its
+// spring rate, motion ratio and tyre rate, and the build-up (nil when the
+// ride rate is given).
+func (v *validator) rideRate(axle string, ride, spring, ratio, tyre *float64) (float64, *RideRateBuildUp) {
+	rideKey, springKey := axle+"_rate_n_per_m", axle+"_spring_rate_n_per_m"
+	ratioKey, tyreKey := axle+"_motion_ratio_spring_per_wheel", axle+"_tyre_rate_n_per_m"
+	switch {
+	case ride != nil && spring != nil:
+		v.fail("vehicle."+springKey, "vehicle."+springKey,
+			"give either %s (the ride rate) or %s (with %s), not both", rideKey, springKey, ratioKey)
+		return 0, nil
+	case ride != nil || spring == nil:
+		for _, k := range []struct {
+			p   *float64
+			key string
+		}{{ratio, ratioKey}, {tyre, tyreKey}} {
+			if k.p != nil {
+				v.fail("vehicle."+k.key, "vehicle."+k.key,
+					"only used with %s; give the spring rate, or remove this key when %s gives the ride rate",
+					springKey, rideKey)
+			}
+		}
+		return v.positive(ride, "vehicle", rideKey, fmt.Sprintf(
+			"the %s axle's ride rate in N/m (both wheels), or %s with %s", axle, springKey, ratioKey)), nil
+	}
+	b := &RideRateBuildUp{TyreRateNPerM: math.Inf(1)}
+	b.SpringRateNPerM = v.positive(spring, "vehicle", springKey,
+		fmt.Sprintf("the %s axle's spring rate in N/m (both springs)", axle))
+	if ratio == nil {
+		v.fail("vehicle."+ratioKey, "vehicle."+springKey,
+			"missing; %s needs the motion ratio, spring travel per wheel travel", springKey)
+		return 0, nil
+	}
+	b.MotionRatioSpringPerWheel = v.positive(ratio, "vehicle", ratioKey, "spring travel per wheel travel")
+	if tyre != nil {
+		b.TyreRateNPerM = v.positive(tyre, "vehicle", tyreKey,
+			fmt.Sprintf("the %s axle's tyre rate in N/m (both tyres)", axle))
+	}
+	return b.RideRateNPerM(), b
 }
 
 // Windows lists the spectral window names a setup may give.

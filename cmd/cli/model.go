@@ -35,7 +35,7 @@ farther from the CG is labelled bounce, the other pitch.`,
 			if err != nil {
 				return err
 			}
-			v := vehicleOf(setup.Vehicle)
+			v := compare.DesignOf(setup.Vehicle)
 			modes, err := v.Modes()
 			if err != nil {
 				return fmt.Errorf("%s: %w", setupPath, err)

@@ -48,7 +48,7 @@ byte for byte. Synthetic logs are not measurements.
 			if sameFile(outPath, setupPath) {
 				return usageError{fmt.Errorf("--out %s would overwrite the setup file", outPath)}
 			}
-			v := vehicleOf(setup.Vehicle)
+			v := compare.DesignOf(setup.Vehicle)
 			var log *simulate.Log
 			switch test {
 			case "rig":

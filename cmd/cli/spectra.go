@@ -1,0 +1,104 @@
+package cli
+
+import (
+	"fmt"
+	"io"
+
+	"github.com/spf13/cobra"
+
+	"github.com/ridemodes/ridemodes/identify"
+	"github.com/ridemodes/ridemodes/identify/spectral"
+	"github.com/ridemodes/ridemodes/ingest"
+)
+
+func newSpectraCmd() *cobra.Command {
+	var (
+		setupPath, csvPath string
+		lf                 logFlags
+	)
+	cmd := &cobra.Command{
+		Use:   "spectra LOG --setup FILE --csv OUT",
+		Short: "Write FRFs and coherence (or auto and cross spectra) of a log as a table",
+		Long: `spectra reads a log in constant memory, low-passes and decimates it when it is
+sampled far above the band, and estimates Welch-averaged spectra with the
+segment length chosen from the damping (or given with --segment).
+
+With [[input]] channels in the setup (a rig test) it writes, per body sensor and
+pan, the FRF (two-input H1: front and rear pans together), magnitude, phase,
+real and imaginary parts, coherence and one-standard-deviation error bands.
+Two pans on one axle are averaged into that axle's input. Without inputs it
+writes the auto spectra (PSD) of the sensors and their cross spectra.
+
+The choices made (decimation, segment length, resolution, averages, expected
+resolution bias) are printed.`,
+		Example: `  ridemodes spectra rig.csv --setup car.toml --csv frf.csv
+  ridemodes spectra rig.csv --setup car.toml --csv frf.csv --start 30 --band-high 3`,
+		Args: usageArgs(cobra.ExactArgs(1)),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			logPath := args[0]
+			setup, err := ingest.LoadSetup(setupPath)
+			if err != nil {
+				return err
+			}
+			if sameFile(csvPath, logPath) || sameFile(csvPath, setupPath) {
+				return usageError{fmt.Errorf("--csv %s would overwrite an input file", csvPath)}
+			}
+			opt, err := lf.frfOptions(setup)
+			if err != nil {
+				return err
+			}
+			r, done, err := lf.openLog(logPath, setup)
+			if err != nil {
+				return err
+			}
+			defer r.Close()
+			stage, err := identify.NewFRFStage(r.Info().Channels, setup.Sensors, setup.Inputs, opt)
+			if err != nil {
+				return err
+			}
+			sum, err := r.Stream(stage.Consume)
+			done()
+			if err != nil {
+				return err
+			}
+			res, err := stage.Result()
+			if err != nil {
+				return fmt.Errorf("%s: %w", logPath, err)
+			}
+			if err := writeAtomic(csvPath, func(w io.Writer) error {
+				if res.FRF != nil {
+					return spectral.WriteFRFTable(w, res.FRF)
+				}
+				return spectral.WriteSpectraTable(w, res.Spectra)
+			}); err != nil {
+				return err
+			}
+			out := cmd.OutOrStdout()
+			fmt.Fprintf(out, "read %s: %d samples at %g Hz (%.1f s)\n", logPath, sum.Samples, sum.SampleRateHz, sum.DurationS)
+			for _, w := range sum.Warnings {
+				fmt.Fprintf(out, "warning: %s\n", w)
+			}
+			for _, s := range res.Reasons {
+				fmt.Fprintf(out, "choice: %s\n", s)
+			}
+			for _, s := range res.Warnings {
+				fmt.Fprintf(out, "warning: %s\n", s)
+			}
+			what := "auto and cross spectra"
+			if res.FRF != nil {
+				what = "FRFs with coherence and error bands"
+			}
+			fmt.Fprintf(out, "wrote %s: %s, %d frequencies at %.4g Hz spacing\n", csvPath, what,
+				len(res.Spectra.FreqsHz), res.Spectra.ResolutionHz())
+			return nil
+		},
+	}
+	cmd.Flags().StringVar(&setupPath, "setup", "", "setup file (TOML) naming the channels")
+	cmd.Flags().StringVar(&csvPath, "csv", "", "table to write (CSV)")
+	lf.register(cmd)
+	cmd.MarkFlagRequired("setup")
+	cmd.MarkFlagRequired("csv")
+	cmd.MarkFlagFilename("setup", "toml")
+	cmd.MarkFlagFilename("csv", "csv")
+	return cmd
+}

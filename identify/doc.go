@@ -1,0 +1,19 @@
+// Package identify turns logs into measured body modes. It composes the
+// routes of its subpackages:
+//
+//   - spectral: streaming Welch spectra, FRFs (H1, H2, two-input H1),
+//     coherence and their random-error bands, decimation and the choice of
+//     resolution (its doc comment fixes the scaling and FRF conventions);
+//   - modal: the mode indicator, the multi-mode pole-residue fit of the FRFs
+//     with common poles, mode shapes and uncertainties (rig tests);
+//   - decay: release detection and the multi-output free-decay fit (drop
+//     tests).
+//
+// This package holds the glue that a command needs: an FRF stage that takes
+// the blocks of an ingest stream, combines the pans of one axle, decimates
+// and accumulates in constant memory, and hands the FRFs on.
+//
+// Conventions: SI units; frequencies in Hz; harmonic quantities in the
+// e^{+i omega t} convention; body positions s from the CG, positive forward
+// (package compare fixes the axes).
+package identify

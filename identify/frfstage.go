@@ -1,0 +1,306 @@
+package identify
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/ridemodes/ridemodes/identify/spectral"
+	"github.com/ridemodes/ridemodes/ingest"
+)
+
+// Default analysis band: body bounce and pitch of road vehicles lie in about
+// 0.8-2.5 Hz (common practice; Gillespie 1992 gives 1-1.5 Hz for passenger
+// cars and up to 2.5 Hz for sports cars [memory]); the band leaves room on
+// both sides for the fit's residual terms.
+const (
+	DefaultBandLowHz  = 0.5
+	DefaultBandHighHz = 4.0
+	// spectraSpan is how far above the band the spectra are kept (for plots
+	// and the out-of-band residuals): the decimator keeps spectraSpan times
+	// the band's upper edge.
+	spectraSpan = 2.0
+	// sameDriveCorrelation is the least correlation coefficient at which two
+	// pans of one axle count as driven together.
+	sameDriveCorrelation = 0.95
+)
+
+// FRFOptions configure an FRFStage. Zero values choose from the data.
+type FRFOptions struct {
+	BandLowHz, BandHighHz float64
+	SegmentLen            int // a power of two; 0 chooses it from the damping
+	Window                spectral.Window
+	Workers               int
+}
+
+func (o *FRFOptions) defaults() error {
+	if o.BandLowHz == 0 {
+		o.BandLowHz = DefaultBandLowHz
+	}
+	if o.BandHighHz == 0 {
+		o.BandHighHz = DefaultBandHighHz
+	}
+	if !(o.BandLowHz > 0) || !(o.BandHighHz > o.BandLowHz) {
+		return fmt.Errorf("identify: the analysis band needs 0 < low < high (got %g to %g Hz)", o.BandLowHz, o.BandHighHz)
+	}
+	if o.SegmentLen != 0 && (o.SegmentLen < 16 || o.SegmentLen&(o.SegmentLen-1) != 0) {
+		return fmt.Errorf("identify: the segment length must be a power of two of at least 16 (got %d)", o.SegmentLen)
+	}
+	return nil
+}
+
+// FRFStage consumes the blocks of a log stream and estimates the spectra and,
+// when the setup has rig inputs, the FRFs from the front and rear pans to
+// every body sensor. Two or more pans on one axle (a four-post rig) are
+// averaged into the axle's input, with a warning when they were not driven
+// together.
+type FRFStage struct {
+	opt       FRFOptions
+	axleCols  [2][]int // block data columns of the front and rear pans
+	sensorCol []int
+	names     []string // stage channels: [front, rear,] sensors...
+	nIn       int
+
+	fsHz  float64              // rate of the stream
+	q     int                  // decimation factor (1: none)
+	sink  spectral.BlockWriter // decimator, or the accumulators directly
+	bank  *spectral.Bank       // when the segment length is chosen from the data
+	acc   *spectral.Accumulator
+	buf   [][]float64 // one block of stage channels
+	pairs []pairStats // per extra pan of an axle: its correlation with the first
+}
+
+// pairStats accumulates the correlation of two pans of one axle.
+type pairStats struct {
+	axle         int
+	a, b         int // block columns
+	n            float64
+	sa, sb       float64
+	saa, sbb     float64
+	sab          float64
+	nameA, nameB string
+}
+
+func (p *pairStats) add(x, y float64) {
+	p.n++
+	p.sa += x
+	p.sb += y
+	p.saa += x * x
+	p.sbb += y * y
+	p.sab += x * y
+}
+
+func (p *pairStats) correlation() float64 {
+	va := p.saa - p.sa*p.sa/p.n
+	vb := p.sbb - p.sb*p.sb/p.n
+	return (p.sab - p.sa*p.sb/p.n) / math.Sqrt(va*vb)
+}
+
+// NewFRFStage prepares a stage for a stream whose blocks hold the channels
+// named in channels (ingest.Info.Channels order).
+func NewFRFStage(channels []string, sensors []ingest.Sensor, inputs []ingest.Input, opt FRFOptions) (*FRFStage, error) {
+	if err := opt.defaults(); err != nil {
+		return nil, err
+	}
+	col := map[string]int{}
+	for i, c := range channels {
+		col[c] = i
+	}
+	find := func(name string) (int, error) {
+		i, ok := col[name]
+		if !ok {
+			return 0, fmt.Errorf("identify: channel %q of the setup is not in the stream", name)
+		}
+		return i, nil
+	}
+	s := &FRFStage{opt: opt}
+	for _, in := range inputs {
+		i, err := find(in.Channel)
+		if err != nil {
+			return nil, err
+		}
+		ax := 0
+		if in.Axle == "rear" {
+			ax = 1
+		}
+		s.axleCols[ax] = append(s.axleCols[ax], i)
+	}
+	if len(inputs) > 0 {
+		if len(s.axleCols[0]) == 0 || len(s.axleCols[1]) == 0 {
+			return nil, errors.New("identify: a rig test needs a front and a rear input")
+		}
+		for ax, cols := range s.axleCols {
+			var ns []string
+			for _, c := range cols {
+				ns = append(ns, channels[c])
+			}
+			name := ns[0]
+			if len(ns) > 1 {
+				name = "mean(" + strings.Join(ns, "+") + ")"
+				for _, c := range cols[1:] {
+					s.pairs = append(s.pairs, pairStats{axle: ax, a: cols[0], b: c, nameA: channels[cols[0]], nameB: channels[c]})
+				}
+			}
+			s.names = append(s.names, name)
+		}
+		s.nIn = 2
+	}
+	for _, se := range sensors {
+		i, err := find(se.Channel)
+		if err != nil {
+			return nil, err
+		}
+		s.sensorCol = append(s.sensorCol, i)
+		s.names = append(s.names, se.Channel)
+	}
+	return s, nil
+}
+
+// start builds the decimator and the accumulators once the stream's rate is known.
+func (s *FRFStage) start(fsHz float64) error {
+	if s.opt.BandHighHz >= fsHz/2 {
+		return fmt.Errorf("identify: the band's upper edge %g Hz is at or above the Nyquist frequency %g Hz of the log",
+			s.opt.BandHighHz, fsHz/2)
+	}
+	s.fsHz = fsHz
+	s.q = spectral.DecimationFactor(fsHz, math.Min(spectraSpan*s.opt.BandHighHz, 0.4*fsHz))
+	outHz := fsHz / float64(s.q)
+	if s.opt.SegmentLen > 0 {
+		acc, err := spectral.NewAccumulator(spectral.Config{FsHz: outHz, SegmentLen: s.opt.SegmentLen,
+			Overlap: s.opt.SegmentLen / 2, Window: s.opt.Window, Detrend: spectral.DetrendMean,
+			Workers: s.opt.Workers}, s.names)
+		if err != nil {
+			return err
+		}
+		s.acc, s.sink = acc, acc
+	} else {
+		bank, err := spectral.NewBank(spectral.BankConfig{FsHz: outHz, Window: s.opt.Window,
+			Detrend: spectral.DetrendMean, Workers: s.opt.Workers}, s.names)
+		if err != nil {
+			return err
+		}
+		s.bank, s.sink = bank, bank
+	}
+	if s.q > 1 {
+		dec, err := spectral.NewDecimator(s.q, len(s.names), fsHz, s.sink)
+		if err != nil {
+			return err
+		}
+		s.sink = dec
+	}
+	s.buf = make([][]float64, len(s.names))
+	return nil
+}
+
+// Consume takes one block of the stream (ingest.Reader.Stream's callback).
+func (s *FRFStage) Consume(b ingest.Block) error {
+	if s.sink == nil {
+		if err := s.start(b.SampleRateHz); err != nil {
+			return err
+		}
+	}
+	n := b.Len()
+	for i := range s.buf {
+		if cap(s.buf[i]) < n {
+			s.buf[i] = make([]float64, n)
+		}
+		s.buf[i] = s.buf[i][:n]
+	}
+	if s.nIn == 2 {
+		for ax, cols := range s.axleCols {
+			dst := s.buf[ax]
+			copy(dst, b.Data[cols[0]])
+			for _, c := range cols[1:] {
+				for j, v := range b.Data[c] {
+					dst[j] += v
+				}
+			}
+			if k := float64(len(cols)); k > 1 {
+				for j := range dst {
+					dst[j] /= k
+				}
+			}
+		}
+		for pi := range s.pairs {
+			p := &s.pairs[pi]
+			for j := 0; j < n; j++ {
+				p.add(b.Data[p.a][j], b.Data[p.b][j])
+			}
+		}
+	}
+	for k, c := range s.sensorCol {
+		copy(s.buf[s.nIn+k], b.Data[c])
+	}
+	s.sink.Write(s.buf)
+	return nil
+}
+
+// FRFResult is what an FRFStage estimated.
+type FRFResult struct {
+	Spectra *spectral.Spectra
+	Choice  *spectral.Choice // nil when the segment length was given
+	FRF     *spectral.FRFSet // nil without rig inputs
+	// DecimationFactor is q: the spectra come from every q-th sample of the
+	// anti-alias filtered stream.
+	DecimationFactor int
+	InputRateHz      float64
+	Reasons          []string // the choices made, for the result JSON
+	Warnings         []string
+}
+
+// Result finishes the estimate after the last block.
+func (s *FRFStage) Result() (*FRFResult, error) {
+	if s.sink == nil {
+		return nil, errors.New("identify: the log held no samples")
+	}
+	r := &FRFResult{DecimationFactor: s.q, InputRateHz: s.fsHz}
+	band := [2]float64{s.opt.BandLowHz, s.opt.BandHighHz}
+	inputs, outputs := []int{}, []int{}
+	if s.nIn == 2 {
+		inputs = []int{0, 1}
+	}
+	for k := range s.sensorCol {
+		outputs = append(outputs, s.nIn+k)
+	}
+	if s.q > 1 {
+		r.Reasons = append(r.Reasons, fmt.Sprintf("decimated by %d from %g Hz to %g Hz (anti-alias FIR) before the FFTs: the band ends at %g Hz",
+			s.q, s.fsHz, s.fsHz/float64(s.q), s.opt.BandHighHz))
+	}
+	var err error
+	if s.bank != nil {
+		r.Choice, r.Spectra, err = s.bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band})
+		if err != nil {
+			return nil, err
+		}
+		r.Reasons = append(r.Reasons, r.Choice.Reasons...)
+		for _, w := range r.Choice.Warnings {
+			r.Warnings = append(r.Warnings, w.Message)
+		}
+	} else {
+		r.Spectra, err = s.acc.Spectra()
+		if err != nil {
+			return nil, err
+		}
+		r.Reasons = append(r.Reasons, fmt.Sprintf("segment length %d samples (%g Hz resolution) as given", s.opt.SegmentLen, r.Spectra.ResolutionHz()))
+	}
+	for _, p := range s.pairs {
+		axle := [2]string{"front", "rear"}[p.axle]
+		if c := p.correlation(); !(c >= sameDriveCorrelation) {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("the %s pans %s and %s were not driven together (correlation %.3f < %.2f); their mean is the %s input and the side-to-side difference (roll, warp) is not in the model",
+				axle, p.nameA, p.nameB, c, sameDriveCorrelation, axle))
+		} else {
+			r.Reasons = append(r.Reasons, fmt.Sprintf("the %s pans %s and %s moved together (correlation %.3f): their mean is the %s input", axle, p.nameA, p.nameB, c, axle))
+		}
+	}
+	if s.nIn == 2 {
+		r.FRF, err = spectral.EstimateFRF(r.Spectra, inputs, outputs, spectral.FRFOptions{BandHz: band})
+		if err != nil {
+			return nil, err
+		}
+		for _, w := range r.FRF.Warnings {
+			r.Warnings = append(r.Warnings, w.Message)
+		}
+	}
+	return r, nil
+}

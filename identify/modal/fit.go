@@ -1,0 +1,496 @@
+package modal
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+
+	"gonum.org/v1/gonum/diff/fd"
+	"gonum.org/v1/gonum/mat"
+)
+
+// Defaults and limits of Fit.
+const (
+	// DefaultMaxOrder is the highest LSCF denominator degree swept.
+	DefaultMaxOrder = 16
+	// minStableOrders is the number of orders at which a pole must be
+	// stable to count as a mode.
+	minStableOrders = 2
+	// binsPerParameter is the least number of real data per fitted
+	// parameter of one FRF.
+	binsPerParameter = 2
+	// poorResidual and poorChiSquare trigger WarnPoorFit.
+	poorResidual  = 0.1
+	poorChiSquare = 4.0
+	// lowCoherence triggers WarnLowCoherence (mean multiple coherence in the band).
+	lowCoherence = 0.8
+	// notRankOne triggers WarnNotRankOne (second over first singular value
+	// of a mode's residue matrix).
+	notRankOne = 0.3
+	// quickBandFactorLow and quickBandFactorHigh widen the quick estimate's
+	// peak range into the default fit band.
+	quickBandFactorLow  = 0.5
+	quickBandFactorHigh = 2.0
+)
+
+// Options tune Fit. BandLowHz and BandHighHz are required unless both are
+// zero, in which case the band is [0.5 f_lo, 2 f_hi] around the quick
+// estimate's peaks found over all bins.
+type Options struct {
+	BandLowHz, BandHighHz float64
+	MaxOrder              int // highest LSCF order swept; 0 means DefaultMaxOrder
+	// OmitUpperResidual and OmitLowerResidual drop the residual terms for
+	// modes above and below the band from the model.
+	OmitUpperResidual, OmitLowerResidual bool
+}
+
+// ModeSD holds the 1-sigma standard deviations of a Mode's parameters.
+type ModeSD struct {
+	NaturalFrequencyHz    float64
+	DampedFrequencyHz     float64
+	DampingRatio          float64
+	PitchPerBounceRadPerM float64
+	NodeM                 float64
+	ShapeRe, ShapeIm      []float64 // of the real and imaginary parts of Shape
+}
+
+// Mode is one identified body mode.
+type Mode struct {
+	Label                 string     // "bounce" or "pitch"
+	Pole                  complex128 // lambda [rad/s]
+	NaturalFrequencyHz    float64    // |lambda|/(2 pi)
+	DampedFrequencyHz     float64    // Im(lambda)/(2 pi)
+	DampingRatio          float64    // -Re(lambda)/|lambda|
+	PitchPerBounceRadPerM float64    // Re(theta/z)
+	NodeM                 float64    // 1/Re(theta/z); NaN when the mode has no pitch
+	// HeaveAndPitch is the shape (z, theta) in (m, rad), scaled to z = 1.
+	HeaveAndPitch [2]complex128
+	// Shape is the mode shape at each sensor, w(s_k)/z, scaled to z = 1.
+	Shape []complex128
+	// RankOneRatio is the second over the first singular value of the
+	// mode's residue matrix (0 for an exact base-excitation mode).
+	RankOneRatio float64
+	SD           ModeSD
+}
+
+// Stabilisation is the stabilisation chart data of the LSCF order sweep.
+type Stabilisation struct {
+	MinOrder, MaxOrder int
+	Points             []StabilisationPoint
+}
+
+// Result is the outcome of Fit.
+type Result struct {
+	Modes []Mode // two modes, sorted by natural frequency
+	// MAC is the modal assurance criterion of the two modes' sensor shapes.
+	MAC float64
+	// NormalisedResidual is sqrt(sum |H - H_model|^2 / sum |H|^2) over every
+	// FRF in the band.
+	NormalisedResidual float64
+	// ChiSquarePerDOF is the whitened residual sum of squares per degree of
+	// freedom; about 1 when the error bands are right and the model fits.
+	ChiSquarePerDOF float64
+	// CoherenceInBand is the mean multiple coherence of each output over the
+	// band (NaN when the set carries no coherence).
+	CoherenceInBand []float64
+	BandLowHz       float64
+	BandHighHz      float64
+	BinsUsed        int
+	Stabilisation   Stabilisation
+	// Order is the LSCF order whose poles started the refinement; OrderReason
+	// says why.
+	Order       int
+	OrderReason string
+	// Iterations of the Levenberg-Marquardt refinement.
+	Iterations int
+	// UpperResidual and LowerResidual are the fitted residual terms per
+	// FRF [output][input] (zero when omitted).
+	UpperResidual, LowerResidual [][]float64
+	Quick                        []QuickMode
+	Warnings                     []Warning
+}
+
+// Fit identifies the two body modes from all FRFs of set with common poles:
+//
+//  1. the quick estimate (QuickEstimate) on the band, kept in the result;
+//  2. the LSCF estimator (see lscfPoles) swept over orders 2..MaxOrder, with
+//     each pole classified against the previous order (stabilisation);
+//     physical poles (stable, damping ratio in (0, 1), inside the band) that
+//     are stable at two or more orders are grouped by frequency and the two
+//     groups stable at the most orders are the body modes;
+//  3. residues and residual terms by weighted linear least squares at those
+//     poles, then a Levenberg-Marquardt refinement of poles, residues and
+//     residual terms together, each bin weighted by 1/SigmaAbs: this removes
+//     the damping bias of the linearised LSCF equation error (De Troyer et al.);
+//  4. shapes from the dominant left singular vector of each mode's residue
+//     matrix, heave and pitch by kinematics, labels, MAC, fit quality, and
+//     standard deviations from the covariance (package documentation) by the
+//     delta method with central differences (gonum's diff/fd).
+//
+// Data problems return errors: *BinCountError (too few usable bins),
+// *ModeCountError (fewer than two modes), and others with a hint. Sensor
+// positions that do not span two distinct positions are a caller mistake
+// and panic.
+func Fit(set *FRFSet, opt Options) (*Result, error) {
+	set.check()
+	checkPositions(set.OutputPosM)
+	if opt.MaxOrder == 0 {
+		opt.MaxOrder = DefaultMaxOrder
+	}
+	if opt.MaxOrder < 4 {
+		panic(fmt.Sprintf("modal: MaxOrder %d cannot hold two modes; use 4 or more", opt.MaxOrder))
+	}
+	res := &Result{}
+	lo, hi := opt.BandLowHz, opt.BandHighHz
+	if lo == 0 && hi == 0 {
+		var err error
+		if lo, hi, err = defaultBand(set); err != nil {
+			return nil, err
+		}
+	}
+	if !(hi > lo && lo > 0) {
+		panic(fmt.Sprintf("modal: fit band %g-%g Hz must satisfy 0 < low < high", lo, hi))
+	}
+	res.BandLowHz, res.BandHighHz = lo, hi
+	var qw []Warning
+	res.Quick, qw = QuickEstimate(set, lo, hi)
+	res.Warnings = append(res.Warnings, qw...)
+
+	b, skipped := newBand(set, lo, hi)
+	res.BinsUsed = len(b.bins)
+	if skipped > 0 {
+		res.Warnings = append(res.Warnings, Warning{WarnSkippedBins, fmt.Sprintf(
+			"%d bins in %.3g-%.3g Hz have NaN or non-positive error bands and were left out", skipped, lo, hi)})
+	}
+	pr := poleResidue{b: b, modes: 2, upper: !opt.OmitUpperResidual, lower: !opt.OmitLowerResidual}
+	need := max(pr.perPair()*binsPerParameter, opt.MaxOrder+2)
+	if len(b.bins) < need {
+		return nil, &BinCountError{Usable: len(b.bins), Need: need, BandLowHz: lo, BandHighHz: hi}
+	}
+
+	pts, err := stabilise(b, opt.MaxOrder)
+	if err != nil {
+		return nil, err
+	}
+	res.Stabilisation = Stabilisation{MinOrder: 2, MaxOrder: opt.MaxOrder, Points: pts}
+	var clusters []poleCluster
+	for _, c := range clusterPoles(pts) {
+		if len(c.members) >= minStableOrders {
+			clusters = append(clusters, c)
+		}
+	}
+	if len(clusters) < 2 {
+		return nil, &ModeCountError{Found: len(clusters), BandLowHz: lo, BandHighHz: hi, Stage: "stabilisation"}
+	}
+	if len(clusters) > 2 {
+		res.Warnings = append(res.Warnings, Warning{WarnExtraModes, fmt.Sprintf(
+			"%d stable physical poles in %.3g-%.3g Hz; kept the two stable at the most orders (%d and %d of %d)",
+			len(clusters), lo, hi, len(clusters[0].members), len(clusters[1].members), opt.MaxOrder-1)})
+	}
+	theta := make([]float64, pr.params())
+	for r, c := range clusters[:2] {
+		p := c.representative().Pole
+		theta[2*r], theta[2*r+1] = real(p), imag(p)
+	}
+	res.Order = max(clusters[0].lowestOrder(), clusters[1].lowestOrder())
+	res.OrderReason = fmt.Sprintf(
+		"LSCF order %d is the lowest at which both body poles are stable; they are stable at %d and %d of orders 2-%d "+
+			"(the starting poles are each group's median); the refined model has 2 modes and %s",
+		res.Order, len(clusters[0].members), len(clusters[1].members), opt.MaxOrder, residualText(pr))
+
+	if err := pr.linearResidues(theta); err != nil {
+		return nil, err
+	}
+	cost, iters, J, err := pr.refine(theta)
+	if err != nil {
+		return nil, err
+	}
+	res.Iterations = iters
+	found := 0
+	for _, l := range pr.poles(theta) {
+		w := cmplx.Abs(l)
+		if z := -real(l) / w; z > 0 && z < 1 && imag(l) > 0 && w/(2*math.Pi) >= lo && w/(2*math.Pi) <= hi {
+			found++
+		}
+	}
+	if found < 2 {
+		return nil, &ModeCountError{Found: found, BandLowHz: lo, BandHighHz: hi, Stage: "refinement"}
+	}
+	cov, chi2, err := pr.covariance(J, cost)
+	if err != nil {
+		return nil, err
+	}
+	res.ChiSquarePerDOF = chi2
+	res.Modes = pr.modesWithSD(theta, cov)
+	res.MAC = mac(res.Modes[0].Shape, res.Modes[1].Shape)
+	res.UpperResidual, res.LowerResidual = pr.residualTerms(theta)
+	res.NormalisedResidual = pr.normalisedResidual(theta)
+	res.CoherenceInBand = coherenceInBand(set, b.bins)
+	res.Warnings = append(res.Warnings, qualityWarnings(res)...)
+	return res, nil
+}
+
+func residualText(pr poleResidue) string {
+	switch {
+	case pr.upper && pr.lower:
+		return "an upper and a lower residual term per FRF"
+	case pr.upper:
+		return "an upper residual term per FRF"
+	case pr.lower:
+		return "a lower residual term per FRF"
+	}
+	return "no residual terms"
+}
+
+// defaultBand returns the band around the quick estimate's peaks over all bins.
+func defaultBand(set *FRFSet) (lo, hi float64, err error) {
+	f := set.FreqHz
+	var first float64
+	for _, v := range f {
+		if v > 0 {
+			first = v
+			break
+		}
+	}
+	qm, _ := QuickEstimate(set, first, f[len(f)-1])
+	if len(qm) == 0 {
+		return 0, 0, fmt.Errorf("modal: no CMIF peak in %.3g-%.3g Hz to centre a default band on; "+
+			"give the band (BandLowHz, BandHighHz) and check the coherence of the FRFs", first, f[len(f)-1])
+	}
+	lo = math.Max(first, quickBandFactorLow*qm[0].PeakHz)
+	hi = math.Min(f[len(f)-1], quickBandFactorHigh*qm[len(qm)-1].PeakHz)
+	return lo, hi, nil
+}
+
+func checkPositions(s []float64) {
+	for _, v := range s {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			panic(fmt.Sprintf("modal: sensor position %g m is not finite", v))
+		}
+		if v != s[0] {
+			return
+		}
+	}
+	panic("modal: the sensors must sit at two or more distinct positions to separate heave from pitch")
+}
+
+// residueMatrix returns mode r's residues as an outputs x inputs matrix.
+func (pr poleResidue) residueMatrix(theta []float64, r int) [][]complex128 {
+	no, ni := pr.b.set.outputs(), pr.b.set.inputs()
+	m := make([][]complex128, no)
+	for o := range no {
+		m[o] = make([]complex128, ni)
+		for i := range ni {
+			c := pr.pairParams(theta, o*ni+i)
+			m[o][i] = complex(c[2*r], c[2*r+1])
+		}
+	}
+	return m
+}
+
+// heavePitch solves w_k = z - s_k theta for (z, theta) in least squares over
+// the sensors (exact for two): the 2x2 normal equations
+// [[n, -S1], [-S1, S2]] (z, theta) = (sum w, -sum s w), S1 = sum s, S2 = sum s^2,
+// solved in closed form (the matrix is real, so Re and Im parts share it).
+func heavePitch(w []complex128, sM []float64) (z, theta complex128) {
+	var n, s1, s2 float64
+	var sw, ssw complex128
+	for k, s := range sM {
+		n++
+		s1 += s
+		s2 += s * s
+		sw += w[k]
+		ssw += complex(s, 0) * w[k]
+	}
+	det := n*s2 - s1*s1
+	z = (complex(s2, 0)*sw - complex(s1, 0)*ssw) / complex(det, 0)
+	theta = (complex(s1, 0)*sw - complex(n, 0)*ssw) / complex(det, 0)
+	return z, theta
+}
+
+// modeQuantities returns, per mode r, the vector (fn, fd, zeta, pitch per
+// bounce, node, Re shape_k..., Im shape_k...) of the parameters theta, with
+// the shape scaled to z = 1. It is the function the delta method
+// differentiates.
+func (pr poleResidue) modeQuantities(theta []float64, r int) []float64 {
+	l := pr.pole(theta, r)
+	w := cmplx.Abs(l)
+	psi, _ := pr.shape(theta, r)
+	z, th := heavePitch(psi, pr.b.set.OutputPosM)
+	ratio := th / z
+	q := []float64{w / (2 * math.Pi), imag(l) / (2 * math.Pi), -real(l) / w, real(ratio), nodeOf(real(ratio), pr.b.set.OutputPosM)}
+	for _, v := range psi {
+		q = append(q, real(v/z))
+	}
+	for _, v := range psi {
+		q = append(q, imag(v/z))
+	}
+	return q
+}
+
+// shape returns the dominant left singular vector of mode r's residue
+// matrix and the ratio of its second to first singular value.
+func (pr poleResidue) shape(theta []float64, r int) ([]complex128, float64) {
+	sv, u := complexSVD(pr.residueMatrix(theta, r), nil, true)
+	ratio := 0.0
+	if len(sv) > 1 && sv[0] > 0 {
+		ratio = sv[1] / sv[0]
+	}
+	return u, ratio
+}
+
+// nodeOf returns 1/ppb, or NaN when the pitch per bounce is negligible
+// against the sensor span (a mode with no node on any sensible scale).
+func nodeOf(ppb float64, sM []float64) float64 {
+	span := 0.0
+	for _, s := range sM {
+		span = math.Max(span, math.Abs(s))
+	}
+	const negligiblePitch = 1e-9
+	if math.Abs(ppb)*span < negligiblePitch {
+		return nan()
+	}
+	return 1 / ppb
+}
+
+// modesWithSD builds both modes with standard deviations by the delta
+// method, sorted by natural frequency and labelled.
+func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []Mode {
+	ms := make([]Mode, pr.modes)
+	nsens := len(pr.b.set.OutputPosM)
+	for r := range ms {
+		q := pr.modeQuantities(theta, r)
+		nq := len(q)
+		G := mat.NewDense(nq, len(theta), nil)
+		fd.Jacobian(G, func(dst, x []float64) { copy(dst, pr.modeQuantities(x, r)) }, theta,
+			&fd.JacobianSettings{Formula: fd.Central})
+		var gc, v mat.Dense
+		gc.Mul(G, cov)
+		v.Mul(&gc, G.T())
+		sd := func(i int) float64 { return math.Sqrt(math.Max(v.At(i, i), 0)) }
+		psi, rank := pr.shape(theta, r)
+		z, th := heavePitch(psi, pr.b.set.OutputPosM)
+		m := Mode{
+			Pole: pr.pole(theta, r), NaturalFrequencyHz: q[0], DampedFrequencyHz: q[1], DampingRatio: q[2],
+			PitchPerBounceRadPerM: q[3], NodeM: q[4], HeaveAndPitch: [2]complex128{1, th / z},
+			RankOneRatio: rank,
+			SD:           ModeSD{NaturalFrequencyHz: sd(0), DampedFrequencyHz: sd(1), DampingRatio: sd(2), PitchPerBounceRadPerM: sd(3), NodeM: sd(4)},
+		}
+		if math.IsNaN(m.NodeM) {
+			m.SD.NodeM = nan()
+		}
+		for k := range nsens {
+			m.Shape = append(m.Shape, complex(q[5+k], q[5+nsens+k]))
+			m.SD.ShapeRe = append(m.SD.ShapeRe, sd(5+k))
+			m.SD.ShapeIm = append(m.SD.ShapeIm, sd(5+nsens+k))
+		}
+		ms[r] = m
+	}
+	sort.Slice(ms, func(i, j int) bool { return ms[i].NaturalFrequencyHz < ms[j].NaturalFrequencyHz })
+	label(ms)
+	return ms
+}
+
+// label names the mode whose node lies farther from the CG bounce, the other
+// pitch (a mode without a node counts as infinitely far).
+func label(ms []Mode) {
+	dist := func(m Mode) float64 {
+		if math.IsNaN(m.NodeM) {
+			return math.Inf(1)
+		}
+		return math.Abs(m.NodeM)
+	}
+	b := 0
+	if dist(ms[1]) > dist(ms[0]) {
+		b = 1
+	}
+	ms[b].Label, ms[1-b].Label = "bounce", "pitch"
+}
+
+// mac is the modal assurance criterion |a^H b|^2 / ((a^H a)(b^H b))
+// (Allemang & Brown, IMAC 1982).
+func mac(a, b []complex128) float64 {
+	var ab complex128
+	var aa, bb float64
+	for k := range a {
+		ab += cmplx.Conj(a[k]) * b[k]
+		aa += real(a[k])*real(a[k]) + imag(a[k])*imag(a[k])
+		bb += real(b[k])*real(b[k]) + imag(b[k])*imag(b[k])
+	}
+	x := cmplx.Abs(ab)
+	return x * x / (aa * bb)
+}
+
+func (pr poleResidue) residualTerms(theta []float64) (upper, lower [][]float64) {
+	no, ni := pr.b.set.outputs(), pr.b.set.inputs()
+	upper, lower = make([][]float64, no), make([][]float64, no)
+	for o := range no {
+		upper[o], lower[o] = make([]float64, ni), make([]float64, ni)
+		for i := range ni {
+			c := pr.pairParams(theta, o*ni+i)[2*pr.modes:]
+			if pr.upper {
+				upper[o][i], c = c[0], c[1:]
+			}
+			if pr.lower {
+				lower[o][i] = c[0]
+			}
+		}
+	}
+	return upper, lower
+}
+
+func (pr poleResidue) normalisedResidual(theta []float64) float64 {
+	e := make([]float64, pr.rows())
+	pr.residualsAndJacobian(e, nil, theta)
+	var num, den float64
+	row := 0
+	for p := range pr.b.pairs {
+		for n := range pr.b.omega {
+			sd := pr.b.sigma[p][n]
+			num += sd * sd * (e[row]*e[row] + e[row+1]*e[row+1])
+			h := pr.b.h[p][n]
+			den += real(h)*real(h) + imag(h)*imag(h)
+			row += 2
+		}
+	}
+	return math.Sqrt(num / den)
+}
+
+func coherenceInBand(set *FRFSet, bins []int) []float64 {
+	out := make([]float64, set.outputs())
+	for o := range out {
+		if set.Coherence == nil {
+			out[o] = nan()
+			continue
+		}
+		s := 0.0
+		for _, k := range bins {
+			s += set.Coherence[o][k]
+		}
+		out[o] = s / float64(len(bins))
+	}
+	return out
+}
+
+func qualityWarnings(res *Result) []Warning {
+	var w []Warning
+	if res.NormalisedResidual > poorResidual || res.ChiSquarePerDOF > poorChiSquare {
+		w = append(w, Warning{WarnPoorFit, fmt.Sprintf(
+			"normalised residual %.3g and reduced chi-square %.3g: the two-mode model or the error bands do not "+
+				"describe the FRFs well; check for other modes in the band, nonlinearity, or a narrower band", res.NormalisedResidual, res.ChiSquarePerDOF)})
+	}
+	for o, c := range res.CoherenceInBand {
+		if c < lowCoherence {
+			w = append(w, Warning{WarnLowCoherence, fmt.Sprintf(
+				"output %d: mean multiple coherence %.2f in the band; check the sensor, its mounting and the drive level", o+1, c)})
+		}
+	}
+	for _, m := range res.Modes {
+		if m.RankOneRatio > notRankOne {
+			w = append(w, Warning{WarnNotRankOne, fmt.Sprintf(
+				"%s mode: its residue matrix is not rank one (singular value ratio %.2f): the shape is uncertain", m.Label, m.RankOneRatio)})
+		}
+	}
+	return w
+}

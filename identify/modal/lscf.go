@@ -1,0 +1,338 @@
+package modal
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// band is the fit's view of an FRFSet: the usable bins in the band, with
+// each FRF (output o, input i) flattened to one index p = o*inputs + i.
+type band struct {
+	set   *FRFSet
+	bins  []int          // indices into set.FreqHz
+	omega []float64      // rad/s at each bin
+	h     [][]complex128 // [p][n]
+	sigma [][]float64    // [p][n], per real component
+	loHz  float64
+	hiHz  float64
+	pairs int
+}
+
+func newBand(set *FRFSet, loHz, hiHz float64) (*band, int) {
+	b := &band{set: set, loHz: loHz, hiHz: hiHz, pairs: set.outputs() * set.inputs()}
+	skipped := 0
+	for k, f := range set.FreqHz {
+		if f < loHz || f > hiHz || f <= 0 {
+			continue
+		}
+		if !set.usable(k) {
+			skipped++
+			continue
+		}
+		b.bins = append(b.bins, k)
+		b.omega = append(b.omega, 2*math.Pi*f)
+	}
+	b.h = make([][]complex128, b.pairs)
+	b.sigma = make([][]float64, b.pairs)
+	for o := range set.outputs() {
+		for i := range set.inputs() {
+			p := o*set.inputs() + i
+			for _, k := range b.bins {
+				b.h[p] = append(b.h[p], set.H[o][i][k])
+				b.sigma[p] = append(b.sigma[p], set.SigmaAbs[o][i][k])
+			}
+		}
+	}
+	return b, skipped
+}
+
+// lscfPoles returns the poles (rad/s, Im > 0) of a common-denominator
+// rational fraction polynomial model of the given order (the degree of the
+// denominator) fitted to every FRF of the band at once.
+//
+// Each FRF p is modelled as B_p(x)/A(x) in the scaled Laplace variable
+// x = i omega/omega_hi, with real polynomial coefficients of degree order
+// (Richardson & Formenti's rational fraction polynomial, in the monomial
+// basis; scaling by the band's upper edge keeps |x| <= 1). The linearised
+// equation error w_pk (B_p(x_k) - H_pk A(x_k)), w_pk = 1/sigma_pk, is
+// minimised in least squares the LSCF way: the numerator coefficients are
+// eliminated FRF by FRF (reduced normal equations
+// M = sum_p T_p - S_p^T R_p^-1 S_p), the highest denominator coefficient is
+// fixed to one, and the poles are omega_hi times the roots of A (companion
+// matrix, gonum's mat.Eigen). A z-domain basis (exp(i omega Ts)) was tried
+// first and dropped: a continuous-time rational FRF is not rational in z,
+// so heavily damped modes needed excess order and the poles wandered with
+// the order (measured on the damped round-trip car of the design notes).
+//
+// References: Richardson & Formenti, IMAC 1982; Guillaume et al., IMAC 2003;
+// Peeters et al., Shock and Vibration 11, 2004 (see the package documentation).
+func lscfPoles(b *band, order int) ([]complex128, error) {
+	ws := 2 * math.Pi * b.hiHz
+	extra := make([]float64, len(b.omega)) // Sanathanan-Koerner weights 1/|A_prev|^2
+	for n := range extra {
+		extra[n] = 1
+	}
+	var a *mat.VecDense
+	for it := 0; it <= skIterations; it++ {
+		var err error
+		if a, err = denominator(b, order, extra); err != nil {
+			return nil, err
+		}
+		mean := 0.0
+		for n, om := range b.omega {
+			x := complex(0, om/ws)
+			v := complex(1, 0) // monic: a_order = 1
+			for j := order - 1; j >= 0; j-- {
+				v = v*x + complex(a.AtVec(j), 0)
+			}
+			av := cmplx.Abs(v)
+			extra[n] = 1 / (av * av)
+			mean += extra[n]
+		}
+		mean /= float64(len(extra))
+		for n := range extra {
+			extra[n] /= mean
+		}
+	}
+	return roots(a, order, ws)
+}
+
+// denominator solves the reduced normal equations of lscfPoles for the
+// monic denominator's lower coefficients a_0..a_{order-1}, each bin's
+// weight multiplied by extra[n].
+func denominator(b *band, order int, extra []float64) (*mat.VecDense, error) {
+	n1 := order + 1
+	ws := 2 * math.Pi * b.hiHz
+	M := mat.NewSymDense(n1, nil)
+	R := mat.NewSymDense(n1, nil)
+	S := mat.NewDense(n1, n1, nil)
+	T := mat.NewSymDense(n1, nil)
+	var chol mat.Cholesky
+	var tmp, prod mat.Dense
+	pow := make([]complex128, n1)
+	for p := range b.pairs {
+		R.Zero()
+		S.Zero()
+		T.Zero()
+		for n, om := range b.omega {
+			w2 := extra[n] / (b.sigma[p][n] * b.sigma[p][n])
+			h := b.h[p][n]
+			a2 := real(h)*real(h) + imag(h)*imag(h)
+			x := complex(0, om/ws)
+			pow[0] = 1
+			for j := 1; j < n1; j++ {
+				pow[j] = pow[j-1] * x
+			}
+			for j := range n1 {
+				cj := cmplx.Conj(pow[j])
+				for l := range n1 {
+					q := cj * pow[l] // conj(x^j) x^l
+					if l >= j {
+						R.SetSym(j, l, R.At(j, l)+w2*real(q))
+						T.SetSym(j, l, T.At(j, l)+w2*a2*real(q))
+					}
+					// S[j][l] = Re(conj(X_j)^T Y_l) with Y = -w H x^l.
+					S.Set(j, l, S.At(j, l)-w2*real(q*h))
+				}
+			}
+		}
+		if !chol.Factorize(R) {
+			return nil, fmt.Errorf("modal: fraction polynomial order %d: the numerator normal equations are singular (too few bins or too high an order)", order)
+		}
+		if err := chol.SolveTo(&tmp, S); err != nil {
+			return nil, fmt.Errorf("modal: fraction polynomial order %d: %w", order, err)
+		}
+		prod.Mul(S.T(), &tmp)
+		for j := range n1 {
+			for l := j; l < n1; l++ {
+				M.SetSym(j, l, M.At(j, l)+T.At(j, l)-prod.At(j, l))
+			}
+		}
+	}
+	// Fix a_order = 1: M[:o,:o] a = -M[:o,o].
+	A := mat.NewDense(order, order, nil)
+	rhs := mat.NewVecDense(order, nil)
+	for j := range order {
+		for l := range order {
+			A.Set(j, l, M.At(j, l))
+		}
+		rhs.SetVec(j, -M.At(j, order))
+	}
+	var a mat.VecDense
+	if err := a.SolveVec(A, rhs); err != nil {
+		return nil, fmt.Errorf("modal: fraction polynomial order %d: the denominator equations are singular: %w", order, err)
+	}
+	return &a, nil
+}
+
+// roots returns the oscillating roots (Im > 0) of the monic polynomial with
+// lower coefficients a, scaled by ws to poles in rad/s, by increasing modulus.
+func roots(a *mat.VecDense, order int, ws float64) ([]complex128, error) {
+	// Companion matrix of x^order + a_{order-1} x^{order-1} + ... + a_0.
+	C := mat.NewDense(order, order, nil)
+	for j := range order {
+		C.Set(0, j, -a.AtVec(order-1-j))
+		if j > 0 {
+			C.Set(j, j-1, 1)
+		}
+	}
+	var eig mat.Eigen
+	if !eig.Factorize(C, mat.EigenNone) {
+		return nil, fmt.Errorf("modal: fraction polynomial order %d: the root finder did not converge", order)
+	}
+	var poles []complex128
+	for _, x := range eig.Values(nil) {
+		// Real roots do not oscillate and are not modes.
+		if imag(x) <= realRootTol*cmplx.Abs(x) {
+			continue
+		}
+		poles = append(poles, x*complex(ws, 0))
+	}
+	sort.Slice(poles, func(i, j int) bool { return cmplx.Abs(poles[i]) < cmplx.Abs(poles[j]) })
+	return poles, nil
+}
+
+// skIterations is the number of Sanathanan-Koerner reweightings of the
+// linearised fit: each divides the equation error by the previous
+// denominator, which removes most of the linearisation's bias
+// (C. K. Sanathanan and J. Koerner, "Transfer function synthesis as a ratio
+// of two complex polynomials", IEEE Trans. Autom. Control 8(1):56-58, 1963,
+// doi:10.1109/TAC.1963.1105517).
+const skIterations = 3
+
+// realRootTol is the relative imaginary part below which a root of the
+// LSCF denominator counts as real.
+const realRootTol = 1e-9
+
+// PoleStatus classifies a pole of the stabilisation diagram.
+type PoleStatus int
+
+// Pole statuses, from least to most settled.
+const (
+	// PoleNew: no pole of the previous order lies near it.
+	PoleNew PoleStatus = iota
+	// PoleFrequencyStable: a previous-order pole has its frequency within
+	// StabilityFrequencyTol but not its damping.
+	PoleFrequencyStable
+	// PoleStable: frequency within StabilityFrequencyTol and damping ratio
+	// within StabilityDampingTol of a previous-order pole.
+	PoleStable
+)
+
+func (s PoleStatus) String() string {
+	switch s {
+	case PoleFrequencyStable:
+		return "frequency-stable"
+	case PoleStable:
+		return "stable"
+	}
+	return "new"
+}
+
+// Stabilisation tolerances between consecutive model orders (the usual
+// choice in the trade [memory]: frequency 1 %, damping 5 %).
+const (
+	StabilityFrequencyTol = 0.01
+	StabilityDampingTol   = 0.05
+)
+
+// StabilisationPoint is one pole of one model order, the data of a
+// stabilisation chart.
+type StabilisationPoint struct {
+	Order              int // denominator degree of the LSCF model
+	Pole               complex128
+	NaturalFrequencyHz float64
+	DampingRatio       float64
+	// Physical is true for a stable pole (Re < 0) with damping ratio in
+	// (0, 1) and natural frequency inside the band.
+	Physical bool
+	Status   PoleStatus
+}
+
+// stabilise sweeps the LSCF orders 2..maxOrder and classifies the poles.
+func stabilise(b *band, maxOrder int) ([]StabilisationPoint, error) {
+	var pts []StabilisationPoint
+	var prev []StabilisationPoint
+	for order := 2; order <= maxOrder; order++ {
+		poles, err := lscfPoles(b, order)
+		if err != nil {
+			return nil, err
+		}
+		var cur []StabilisationPoint
+		for _, lam := range poles {
+			p := StabilisationPoint{Order: order, Pole: lam}
+			w := cmplx.Abs(lam)
+			p.NaturalFrequencyHz = w / (2 * math.Pi)
+			p.DampingRatio = -real(lam) / w
+			p.Physical = p.DampingRatio > 0 && p.DampingRatio < 1 &&
+				p.NaturalFrequencyHz >= b.loHz && p.NaturalFrequencyHz <= b.hiHz
+			for _, q := range prev {
+				if math.Abs(p.NaturalFrequencyHz-q.NaturalFrequencyHz) > StabilityFrequencyTol*q.NaturalFrequencyHz {
+					continue
+				}
+				st := PoleFrequencyStable
+				if math.Abs(p.DampingRatio-q.DampingRatio) <= StabilityDampingTol*math.Abs(q.DampingRatio) {
+					st = PoleStable
+				}
+				p.Status = max(p.Status, st)
+			}
+			cur = append(cur, p)
+		}
+		pts = append(pts, cur...)
+		prev = cur
+	}
+	return pts, nil
+}
+
+// poleCluster is a group of stable physical poles of different orders
+// with nearly the same natural frequency.
+type poleCluster struct {
+	members []StabilisationPoint
+}
+
+// clusterPoles groups the stable physical poles: sorted by natural
+// frequency, a pole joins the current cluster when it lies within
+// 2*StabilityFrequencyTol of the cluster's last member. Clusters are
+// returned by decreasing size (number of orders at which the pole is stable).
+func clusterPoles(pts []StabilisationPoint) []poleCluster {
+	var st []StabilisationPoint
+	for _, p := range pts {
+		if p.Physical && p.Status == PoleStable {
+			st = append(st, p)
+		}
+	}
+	sort.Slice(st, func(i, j int) bool { return st[i].NaturalFrequencyHz < st[j].NaturalFrequencyHz })
+	var cs []poleCluster
+	for _, p := range st {
+		if n := len(cs); n > 0 {
+			last := cs[n-1].members[len(cs[n-1].members)-1]
+			if p.NaturalFrequencyHz-last.NaturalFrequencyHz <= 2*StabilityFrequencyTol*last.NaturalFrequencyHz {
+				cs[n-1].members = append(cs[n-1].members, p)
+				continue
+			}
+		}
+		cs = append(cs, poleCluster{members: []StabilisationPoint{p}})
+	}
+	sort.SliceStable(cs, func(i, j int) bool { return len(cs[i].members) > len(cs[j].members) })
+	return cs
+}
+
+// representative returns the member with the median natural frequency.
+func (c poleCluster) representative() StabilisationPoint {
+	m := append([]StabilisationPoint(nil), c.members...)
+	sort.Slice(m, func(i, j int) bool { return m[i].NaturalFrequencyHz < m[j].NaturalFrequencyHz })
+	return m[len(m)/2]
+}
+
+// lowestOrder returns the lowest order at which the cluster has a member.
+func (c poleCluster) lowestOrder() int {
+	o := math.MaxInt
+	for _, m := range c.members {
+		o = min(o, m.Order)
+	}
+	return o
+}

@@ -12,12 +12,36 @@ type Result struct {
 	Setup      *FileRef     `json:"setup,omitempty"`
 	Log        *LogRef      `json:"log,omitempty"`
 	Test       string       `json:"test,omitempty"`
+	Analysis   *Analysis    `json:"analysis,omitempty"`
 	Modes      []ModeJSON   `json:"modes,omitempty"`
 	Model      *ModelJSON   `json:"model,omitempty"`
 	Comparison []Comparison `json:"comparison,omitempty"`
 	Updated    *Updated     `json:"updated,omitempty"`
 	Checks     []Check      `json:"checks,omitempty"`
 	Warnings   []string     `json:"warnings"`
+}
+
+// Analysis records how the modes were identified: the band, the choices
+// made with their reasons, and the quick single-mode estimate that the fit
+// is set beside.
+type Analysis struct {
+	BandLowHz     float64         `json:"band_low_hz"`
+	BandHighHz    float64         `json:"band_high_hz"`
+	Choices       []string        `json:"choices"`
+	QuickEstimate []QuickEstimate `json:"quick_estimate,omitempty"`
+	// FitResidual is the fit's normalised residual (0 for a perfect fit).
+	FitResidual float64 `json:"fit_residual"`
+	// ModeShapeMAC is the MAC between the two measured mode shapes (near 0:
+	// well separated shapes).
+	ModeShapeMAC float64 `json:"mode_shape_mac"`
+}
+
+// QuickEstimate is a single-mode estimate (peak picking with half-power
+// points, or a log decrement): a first look, not the result.
+type QuickEstimate struct {
+	Source             string   `json:"source"`
+	NaturalFrequencyHz float64  `json:"natural_frequency_hz"`
+	DampingRatio       *float64 `json:"damping_ratio"`
 }
 
 // Tool names the program that wrote a result.

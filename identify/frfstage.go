@@ -32,6 +32,9 @@ type FRFOptions struct {
 	SegmentLen            int // a power of two; 0 chooses it from the damping
 	Window                spectral.Window
 	Workers               int
+	// MaxResolutionBias bounds the expected resolution bias at the peak when
+	// the segment length is chosen (0: spectral.DefaultMaxBias).
+	MaxResolutionBias float64
 }
 
 func (o *FRFOptions) defaults() error {
@@ -269,7 +272,7 @@ func (s *FRFStage) Result() (*FRFResult, error) {
 	}
 	var err error
 	if s.bank != nil {
-		r.Choice, r.Spectra, err = s.bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band})
+		r.Choice, r.Spectra, err = s.bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band, MaxBias: s.opt.MaxResolutionBias})
 		if err != nil {
 			return nil, err
 		}

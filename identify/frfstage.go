@@ -33,9 +33,28 @@ type FRFOptions struct {
 	Window                spectral.Window
 	Workers               int
 	// MaxResolutionBias bounds the expected resolution bias at the peak when
-	// the segment length is chosen (0: spectral.DefaultMaxBias).
+	// the segment length is chosen (0: DefaultFitResolutionBias).
 	MaxResolutionBias float64
 }
+
+// DefaultFitResolutionBias is the expected resolution bias allowed when the
+// segment length is chosen for the modal fit: (1/3)(Be/Br)^2 <= 0.004, a
+// window bandwidth Be near a ninth of the half-power bandwidth Br. Measured on
+// simulated rig logs (identify/modal tests): with Be a quarter of Br the
+// fitted damping ratio came out about 0.02 high from leakage; at a tenth the
+// bias is below the random error. It is stricter than the spectral package's
+// default, which bounds the bias of a peak's magnitude only.
+const DefaultFitResolutionBias = 0.004
+
+// fitMinAverages is the least effective number of averages the resolution
+// choice accepts for the modal fit: fewer than the spectral package's
+// default of 20. The fit weights every bin by its own error band, so fewer
+// averages cost precision, which the reported standard deviations carry;
+// too coarse a resolution costs accuracy through leakage, which nothing
+// reports. Measured on the 20 seeded logs of TestRigRouteAccuracy: with 20,
+// 12 and 8 averages, 86.7 %, 91.7 % and 95.0 % of the errors lay within two
+// reported standard deviations, and the damping bias fell.
+const fitMinAverages = 8
 
 func (o *FRFOptions) defaults() error {
 	if o.BandLowHz == 0 {
@@ -43,6 +62,9 @@ func (o *FRFOptions) defaults() error {
 	}
 	if o.BandHighHz == 0 {
 		o.BandHighHz = DefaultBandHighHz
+	}
+	if o.MaxResolutionBias == 0 {
+		o.MaxResolutionBias = DefaultFitResolutionBias
 	}
 	if !(o.BandLowHz > 0) || !(o.BandHighHz > o.BandLowHz) {
 		return fmt.Errorf("identify: the analysis band needs 0 < low < high (got %g to %g Hz)", o.BandLowHz, o.BandHighHz)
@@ -248,8 +270,10 @@ type FRFResult struct {
 	// anti-alias filtered stream.
 	DecimationFactor int
 	InputRateHz      float64
-	Reasons          []string // the choices made, for the result JSON
-	Warnings         []string
+	// BandLowHz and BandHighHz are the analysis band.
+	BandLowHz, BandHighHz float64
+	Reasons               []string // the choices made, for the result JSON
+	Warnings              []string
 }
 
 // Result finishes the estimate after the last block.
@@ -257,7 +281,7 @@ func (s *FRFStage) Result() (*FRFResult, error) {
 	if s.sink == nil {
 		return nil, errors.New("identify: the log held no samples")
 	}
-	r := &FRFResult{DecimationFactor: s.q, InputRateHz: s.fsHz}
+	r := &FRFResult{DecimationFactor: s.q, InputRateHz: s.fsHz, BandLowHz: s.opt.BandLowHz, BandHighHz: s.opt.BandHighHz}
 	band := [2]float64{s.opt.BandLowHz, s.opt.BandHighHz}
 	inputs, outputs := []int{}, []int{}
 	if s.nIn == 2 {
@@ -267,12 +291,12 @@ func (s *FRFStage) Result() (*FRFResult, error) {
 		outputs = append(outputs, s.nIn+k)
 	}
 	if s.q > 1 {
-		r.Reasons = append(r.Reasons, fmt.Sprintf("decimated by %d from %g Hz to %g Hz (anti-alias FIR) before the FFTs: the band ends at %g Hz",
+		r.Reasons = append(r.Reasons, fmt.Sprintf("decimated by %d from %.6g Hz to %.6g Hz (anti-alias FIR) before the FFTs: the band ends at %g Hz",
 			s.q, s.fsHz, s.fsHz/float64(s.q), s.opt.BandHighHz))
 	}
 	var err error
 	if s.bank != nil {
-		r.Choice, r.Spectra, err = s.bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band, MaxBias: s.opt.MaxResolutionBias})
+		r.Choice, r.Spectra, err = s.bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band, MaxBias: s.opt.MaxResolutionBias, MinAverages: fitMinAverages})
 		if err != nil {
 			return nil, err
 		}

@@ -1,0 +1,36 @@
+// Package plots draws the figures of a ridemodes analysis and writes the
+// report that an engineer files.
+//
+// # Inputs
+//
+// The figures take small input types of their own (FRFData, IndicatorData,
+// StabData, ShapeData, DecayData) made of plain slices and strings, so that
+// this package does not depend on the identification packages; the caller
+// converts. The report renders a compare.Result beside them.
+//
+// # Conventions
+//
+// Axes and signs are those of package compare (ISO 8855): s is a position
+// along the body from the centre of gravity (CG), positive forward, in m;
+// the front axle is at s = +a and the rear axle at s = -b; the vertical motion
+// of the body at s is w(s) = z - s*theta with theta positive nose-down. Mode
+// shapes are drawn with z = 1 and then scaled so that the largest |w| over the
+// wheelbase is 1. Frequencies are in Hz, phases in degrees, times in s.
+//
+// # Data problems
+//
+// Every figure checks its data before drawing: an empty series, a NaN or an
+// infinity, a length mismatch or a value that a log axis cannot show is
+// returned as a *SeriesError naming the series and the index; nothing
+// panics on bad data.
+//
+// # Files
+//
+// Figure.Save writes a figure as PNG or SVG, chosen by the file extension.
+// WriteReport writes report.html (self-contained: images embedded as base64
+// PNG, CSS inline, no external URLs) and each figure as its own PNG file
+// into a report directory: frf.png, mode-indicator.png, stabilisation.png,
+// mode-shapes.png and time-history.png, for the figures whose inputs are
+// given. Every file is written to a temporary file in the
+// same folder and then renamed, so a failure leaves nothing behind.
+package plots

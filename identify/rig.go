@@ -9,10 +9,11 @@ import (
 
 // FitRig fits the body modes to the FRFs of a rig test: the FRFs of an
 // FRFStage go to modal.Fit with the sensors' positions (setup order, the
-// stage's output order) and the stage's band unless opt gives one.
-func FitRig(frf *FRFResult, sensors []ingest.Sensor, opt modal.Options) (*modal.Result, error) {
+// stage's output order) and the stage's band unless opt gives one. It
+// returns the FRF set the fit saw, too.
+func FitRig(frf *FRFResult, sensors []ingest.Sensor, opt modal.Options) (*modal.FRFSet, *modal.Result, error) {
 	if frf.FRF == nil {
-		return nil, errors.New("identify: no FRFs: a rig test needs [[input]] channels")
+		return nil, nil, errors.New("identify: no FRFs: a rig test needs [[input]] channels")
 	}
 	pos := make([]float64, len(sensors))
 	for i, s := range sensors {
@@ -20,10 +21,11 @@ func FitRig(frf *FRFResult, sensors []ingest.Sensor, opt modal.Options) (*modal.
 	}
 	set, err := modal.FromSpectral(frf.FRF, frf.Spectra, pos)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	if opt.BandLowHz == 0 && opt.BandHighHz == 0 {
 		opt.BandLowHz, opt.BandHighHz = frf.BandLowHz, frf.BandHighHz
 	}
-	return modal.Fit(set, opt)
+	fit, err := modal.Fit(set, opt)
+	return set, fit, err
 }

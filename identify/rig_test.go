@@ -113,7 +113,7 @@ func runRig(t *testing.T, c rigCase) *modal.Result {
 	if err != nil {
 		t.Fatal(err)
 	}
-	fit, err := FitRig(frf, c.sensors, modal.Options{})
+	_, fit, err := FitRig(frf, c.sensors, modal.Options{})
 	if err != nil {
 		t.Fatalf("%v (choices: %v)", err, frf.Reasons)
 	}

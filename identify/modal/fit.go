@@ -109,6 +109,23 @@ type Result struct {
 	UpperResidual, LowerResidual [][]float64
 	Quick                        []QuickMode
 	Warnings                     []Warning
+
+	model  poleResidue // the refined model, for ModelFRF
+	theta  []float64
+	inputs int
+}
+
+// ModelFRF returns the fitted model's FRF from input in to output out (the
+// FRFSet's order) at freqHz > 0: the two modes' pole-residue terms plus the
+// residual terms, for setting the fit beside the measured FRF.
+func (r *Result) ModelFRF(out, in int, freqHz float64) complex128 {
+	bs := make([]complex128, r.model.perPair())
+	r.model.basis(bs, r.model.poles(r.theta), 2*math.Pi*freqHz)
+	var h complex128
+	for k, c := range r.model.pairParams(r.theta, out*r.inputs+in) {
+		h += complex(c, 0) * bs[k]
+	}
+	return h
 }
 
 // Fit identifies the two body modes from all FRFs of set with common poles:
@@ -169,11 +186,11 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 		return nil, &BinCountError{Usable: len(b.bins), Need: need, BandLowHz: lo, BandHighHz: hi}
 	}
 
-	pts, err := stabilise(b, opt.MaxOrder)
+	pts, reached, err := stabilise(b, opt.MaxOrder)
 	if err != nil {
 		return nil, err
 	}
-	res.Stabilisation = Stabilisation{MinOrder: 2, MaxOrder: opt.MaxOrder, Points: pts}
+	res.Stabilisation = Stabilisation{MinOrder: 2, MaxOrder: reached, Points: pts}
 	var clusters []poleCluster
 	for _, c := range clusterPoles(pts) {
 		if len(c.members) >= minStableOrders {
@@ -186,7 +203,7 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	if len(clusters) > 2 {
 		res.Warnings = append(res.Warnings, Warning{WarnExtraModes, fmt.Sprintf(
 			"%d stable physical poles in %.3g-%.3g Hz; kept the two stable at the most orders (%d and %d of %d)",
-			len(clusters), lo, hi, len(clusters[0].members), len(clusters[1].members), opt.MaxOrder-1)})
+			len(clusters), lo, hi, len(clusters[0].members), len(clusters[1].members), reached-1)})
 	}
 	theta := make([]float64, pr.params())
 	for r, c := range clusters[:2] {
@@ -197,7 +214,11 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	res.OrderReason = fmt.Sprintf(
 		"LSCF order %d is the lowest at which both body poles are stable; they are stable at %d and %d of orders 2-%d "+
 			"(the starting poles are each group's median); the refined model has 2 modes and %s",
-		res.Order, len(clusters[0].members), len(clusters[1].members), opt.MaxOrder, residualText(pr))
+		res.Order, len(clusters[0].members), len(clusters[1].members), reached, residualText(pr))
+	if reached < opt.MaxOrder {
+		res.OrderReason += fmt.Sprintf("; the sweep ended at order %d of %d, where the equations became singular (the data hold no more poles)",
+			reached, opt.MaxOrder)
+	}
 
 	if err := pr.linearResidues(theta); err != nil {
 		return nil, err
@@ -207,6 +228,7 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 		return nil, err
 	}
 	res.Iterations = iters
+	res.model, res.theta, res.inputs = pr, theta, set.inputs()
 	found := 0
 	for _, l := range pr.poles(theta) {
 		w := cmplx.Abs(l)

@@ -254,13 +254,20 @@ type StabilisationPoint struct {
 }
 
 // stabilise sweeps the LSCF orders 2..maxOrder and classifies the poles.
-func stabilise(b *band, maxOrder int) ([]StabilisationPoint, error) {
-	var pts []StabilisationPoint
+//
+// Very clean data makes the higher orders' equations singular (the model
+// needs no more poles than the data hold): the sweep then ends at the last
+// order that solved, provided that is at least minSweepOrder, and returns
+// it as reached.
+func stabilise(b *band, maxOrder int) (pts []StabilisationPoint, reached int, err error) {
 	var prev []StabilisationPoint
 	for order := 2; order <= maxOrder; order++ {
 		poles, err := lscfPoles(b, order)
 		if err != nil {
-			return nil, err
+			if order > minSweepOrder {
+				return pts, order - 1, nil
+			}
+			return nil, 0, err
 		}
 		var cur []StabilisationPoint
 		for _, lam := range poles {
@@ -285,8 +292,13 @@ func stabilise(b *band, maxOrder int) ([]StabilisationPoint, error) {
 		pts = append(pts, cur...)
 		prev = cur
 	}
-	return pts, nil
+	return pts, maxOrder, nil
 }
+
+// minSweepOrder is the lowest order a sweep must reach for its
+// stabilisation check to mean anything: two modes need order 4, and a
+// stable pole must persist over several orders beyond it.
+const minSweepOrder = 8
 
 // poleCluster is a group of stable physical poles of different orders
 // with nearly the same natural frequency.

@@ -1,0 +1,302 @@
+package decay
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+)
+
+// Detection defaults.
+const (
+	// DefaultThresholdK is the departure a release must reach, in multiples
+	// of a channel's noise standard deviation. At 8 sd a Gaussian sample
+	// exceeds it with probability about 1e-15, so noise alone never triggers.
+	DefaultThresholdK = 8
+	// DefaultRestS is the length of the quiet stretch that counts as rest,
+	// before a release (the pre-trigger) and after the decay.
+	DefaultRestS = 0.5
+	// quietFactor: a stretch is quiet when every channel's standard deviation
+	// about its own mean over the stretch is at most quietFactor times the
+	// channel's noise. An oscillation of amplitude X adds X^2/2 to the
+	// variance, so quiet means X below about 1.6 noise sd.
+	quietFactor = 1.5
+	// sustainS is how long the departure must persist (at least
+	// minSustainSamples samples), so a single spike is not a release.
+	sustainS          = 0.01
+	minSustainSamples = 3
+)
+
+// DetectOptions set the event detector. Zero values take the defaults.
+type DetectOptions struct {
+	// ThresholdK is the departure from rest, in noise standard deviations,
+	// that marks a release (default DefaultThresholdK).
+	ThresholdK float64
+	// RestS is the length of quiet log that counts as rest (default
+	// DefaultRestS). A release is only recognised after RestS of rest.
+	RestS float64
+}
+
+func (o DetectOptions) withDefaults() DetectOptions {
+	if o.ThresholdK == 0 {
+		o.ThresholdK = DefaultThresholdK
+	}
+	if o.RestS == 0 {
+		o.RestS = DefaultRestS
+	}
+	if !(o.ThresholdK > 0) || !(o.RestS > 0) || math.IsInf(o.ThresholdK, 0) || math.IsInf(o.RestS, 0) {
+		panic(fmt.Sprintf("decay: detection needs a positive threshold and rest length (got %g, %g s)", o.ThresholdK, o.RestS))
+	}
+	return o
+}
+
+// Event is one release found in a log. Indices count samples from 0, times
+// are index/rate in s.
+type Event struct {
+	ReleaseIndex int     // first sample that departs from rest
+	ReleaseS     float64 // ReleaseIndex / rate
+	// RestIndex is the first sample of the quiet stretch that ends the decay
+	// (the log's length when the body never came to rest again).
+	RestIndex int
+	RestS     float64
+	// Settled is false when the decay had not died into the noise by the
+	// end of the log.
+	Settled bool
+	// RestLevel is each channel's mean over the rest stretch just before the
+	// release (DC offset and gravity, if the sensor shows it), in the log's
+	// units.
+	RestLevel []float64
+	// NoiseSD is each channel's noise standard deviation, estimated robustly
+	// over the whole log (see Detect).
+	NoiseSD []float64
+	// PeakDeparture is the largest departure from the rest level during the
+	// event, in noise standard deviations (the largest over channels).
+	PeakDeparture float64
+}
+
+// ErrNoEvent is matched (errors.Is) by a *NoEventError.
+var ErrNoEvent = errors.New("decay: no release in the log")
+
+// NoEventError reports a log in which no release was found.
+type NoEventError struct {
+	DurationS  float64
+	ThresholdK float64
+	RestS      float64
+	// NeverAtRest is true when no stretch of RestS was quiet, so there was
+	// no rest to depart from.
+	NeverAtRest bool
+	// LargestDeparture is the largest departure from rest seen, in noise
+	// standard deviations (0 when NeverAtRest).
+	LargestDeparture float64
+}
+
+func (e *NoEventError) Error() string {
+	if e.NeverAtRest {
+		return fmt.Sprintf("decay: the %.3g s log is never at rest for %.3g s, so no release can be found; "+
+			"record a pre-trigger of at least %.3g s with the car still, check that the channels are body "+
+			"accelerometers, or shorten the rest length", e.DurationS, e.RestS, e.RestS)
+	}
+	return fmt.Sprintf("decay: no release in the %.3g s log: the body channels never depart from rest by more "+
+		"than %g times their noise (largest departure %.3g times); check that the log covers the drop, that the "+
+		"channels are the body accelerometers and their scaling, or lower the threshold",
+		e.DurationS, e.ThresholdK, e.LargestDeparture)
+}
+
+// Is lets errors.Is match ErrNoEvent.
+func (e *NoEventError) Is(target error) bool { return target == ErrNoEvent }
+
+// ConstantChannelError reports a channel without noise or signal: a dead
+// sensor or a flat-lined channel.
+type ConstantChannelError struct{ Channel int }
+
+func (e *ConstantChannelError) Error() string {
+	return fmt.Sprintf("decay: channel %d is constant (no noise, no signal); check the sensor, its cable and "+
+		"the channel mapping", e.Channel)
+}
+
+// Detect finds every release in a multi-channel log of body accelerations
+// (channels[c][i], any units, equal lengths) sampled at rateHz.
+//
+// The rule: each channel's noise sd is measured from its first differences
+// (see noiseSD), robust to the minority of the log in motion and blind to DC
+// offsets and slow drift. A stretch of opt.RestS is
+// rest when every channel's standard deviation over it is at most
+// quietFactor times its noise. After rest, the release is the first sample
+// at which some channel departs from its mean over the preceding rest
+// stretch by more than ThresholdK noise sd, provided the departure persists
+// for sustainS (at least minSustainSamples samples); the reference moves
+// with the sample, so slow drift is followed. The event ends at the first
+// quiet stretch after the release (RestIndex), and the detector re-arms
+// there, so several drops in one log give several events.
+//
+// Detect returns a *NoEventError when there is no release and a
+// *ConstantChannelError for a dead channel. Mismatched channel lengths, no
+// channels or a non-positive rate are caller mistakes and panic.
+func Detect(rateHz float64, channels [][]float64, opt DetectOptions) ([]Event, error) {
+	checkChannels(rateHz, channels)
+	opt = opt.withDefaults()
+	n := len(channels[0])
+	w := max(int(math.Round(opt.RestS*rateHz)), 8)
+	if n < 2*w+1 {
+		return nil, fmt.Errorf("decay: the log has %d samples (%.3g s); it needs at least %d (twice the rest "+
+			"length %.3g s) to show rest and a release", n, float64(n)/rateHz, 2*w+1, opt.RestS)
+	}
+	sd := make([]float64, len(channels))
+	for c, x := range channels {
+		sd[c] = noiseSD(x)
+		if sd[c] == 0 {
+			return nil, &ConstantChannelError{Channel: c}
+		}
+	}
+	pw := newPrefixWindows(channels)
+	sustain := max(int(math.Round(sustainS*rateHz)), minSustainSamples)
+	quiet := func(i int) bool { // the stretch [i-w, i)
+		for c := range channels {
+			if pw.variance(c, i-w, i) > quietFactor*quietFactor*sd[c]*sd[c] {
+				return false
+			}
+		}
+		return true
+	}
+	departure := func(i, ref int) float64 { // at sample i from the mean of [ref-w, ref)
+		d := 0.0
+		for c, x := range channels {
+			d = math.Max(d, math.Abs(x[i]-pw.mean(c, ref-w, ref))/sd[c])
+		}
+		return d
+	}
+	held := func(i, ref int) bool { // the departure lasts sustain samples
+		for j := i; j < i+sustain; j++ {
+			if departure(j, ref) <= opt.ThresholdK {
+				return false
+			}
+		}
+		return true
+	}
+	var events []Event
+	everRest := false
+	largest := 0.0
+	ref := -1 // the last sample whose preceding stretch was rest; -1: not armed
+	for i := w; i+sustain <= n; {
+		if quiet(i) {
+			ref, everRest = i, true
+		}
+		if ref < 0 {
+			i++
+			continue
+		}
+		if !held(i, ref) {
+			largest = math.Max(largest, departure(i, ref))
+			i++
+			continue
+		}
+		ev := Event{ReleaseIndex: i, ReleaseS: float64(i) / rateHz, NoiseSD: sd, RestLevel: make([]float64, len(channels))}
+		for c := range channels {
+			ev.RestLevel[c] = pw.mean(c, ref-w, ref)
+		}
+		j := i + sustain + w
+		for j <= n && !quiet(j) {
+			j++
+		}
+		ev.Settled = j <= n
+		ev.RestIndex = n
+		if ev.Settled {
+			ev.RestIndex = j - w
+		}
+		ev.RestS = float64(ev.RestIndex) / rateHz
+		for k := i; k < ev.RestIndex; k++ {
+			ev.PeakDeparture = math.Max(ev.PeakDeparture, departure(k, ref))
+		}
+		events = append(events, ev)
+		ref, i = -1, j
+	}
+	if len(events) == 0 {
+		return nil, &NoEventError{DurationS: float64(n) / rateHz, ThresholdK: opt.ThresholdK, RestS: opt.RestS,
+			NeverAtRest: !everRest, LargestDeparture: largest}
+	}
+	return events, nil
+}
+
+// checkChannels panics on caller mistakes in the shape of the data.
+func checkChannels(rateHz float64, channels [][]float64) {
+	if !(rateHz > 0) || math.IsInf(rateHz, 0) {
+		panic(fmt.Sprintf("decay: sample rate %g Hz; give a positive finite rate", rateHz))
+	}
+	if len(channels) == 0 {
+		panic("decay: no channels")
+	}
+	for c, x := range channels {
+		if len(x) != len(channels[0]) {
+			panic(fmt.Sprintf("decay: channel %d has %d samples, channel 0 has %d", c, len(x), len(channels[0])))
+		}
+	}
+}
+
+// noiseBlock is the length, in samples, of the blocks over which noiseSD
+// measures the noise.
+const noiseBlock = 64
+
+// noiseSD returns a robust estimate of the white-noise standard deviation of
+// x: the first differences (offsets and drift cancel in them; a difference
+// of two independent samples has twice the variance) are cut into blocks of
+// noiseBlock, each block gives its RMS over sqrt(2), and the median over the
+// blocks is the estimate. Blocks in motion give larger values and are
+// outvoted as long as more than half the log is at rest.
+func noiseSD(x []float64) float64 {
+	var per []float64
+	for a := 1; a < len(x); a += noiseBlock {
+		b := min(a+noiseBlock, len(x))
+		var ss float64
+		for i := a; i < b; i++ {
+			ss += (x[i] - x[i-1]) * (x[i] - x[i-1])
+		}
+		per = append(per, math.Sqrt(ss/float64(2*(b-a))))
+	}
+	return median(per)
+}
+
+// median returns the median of x, reordering x.
+func median(x []float64) float64 {
+	sort.Float64s(x)
+	m := len(x) / 2
+	if len(x)%2 == 1 {
+		return x[m]
+	}
+	return (x[m-1] + x[m]) / 2
+}
+
+// prefixWindows gives the mean and variance of any stretch of each channel
+// in O(1) from running sums of x - x[0] (the shift keeps large offsets from
+// cancelling digits).
+type prefixWindows struct {
+	s1, s2 [][]float64 // s1[c][i] = sum over [0, i) of (x - x0)
+	x0     []float64
+}
+
+func newPrefixWindows(channels [][]float64) prefixWindows {
+	p := prefixWindows{s1: make([][]float64, len(channels)), s2: make([][]float64, len(channels)),
+		x0: make([]float64, len(channels))}
+	for c, x := range channels {
+		p.x0[c] = x[0]
+		p.s1[c] = make([]float64, len(x)+1)
+		p.s2[c] = make([]float64, len(x)+1)
+		for i, v := range x {
+			d := v - x[0]
+			p.s1[c][i+1] = p.s1[c][i] + d
+			p.s2[c][i+1] = p.s2[c][i] + d*d
+		}
+	}
+	return p
+}
+
+// mean of channel c over [a, b).
+func (p prefixWindows) mean(c, a, b int) float64 {
+	return p.x0[c] + (p.s1[c][b]-p.s1[c][a])/float64(b-a)
+}
+
+// variance (population) of channel c over [a, b).
+func (p prefixWindows) variance(c, a, b int) float64 {
+	m := float64(b - a)
+	s := p.s1[c][b] - p.s1[c][a]
+	return math.Max((p.s2[c][b]-p.s2[c][a])/m-(s/m)*(s/m), 0)
+}

@@ -1,0 +1,144 @@
+// Package decay identifies the bounce and pitch modes of a car body from a
+// drop test: the car is released off blocks onto its wheels, nothing is
+// measured at the input, and two or more vertical accelerometers on the body
+// log the free decay of two close, heavily damped modes.
+//
+// # Conventions
+//
+// SI units: times in s, frequencies in Hz at the interface (rad/s inside),
+// positions in m, pitch in rad. Accelerations may be in any unit (the fit
+// is linear in them); noise and offsets are reported in the log's unit.
+// Axes and signs are those of package compare (ISO 8855): z up, pitch theta
+// positive nose-down, s positive forward of the CG, w(s) = z - s*theta. A
+// stable pole lambda has Re(lambda) < 0; of each conjugate pair the one with
+// Im(lambda) > 0 is reported. natural_frequency_hz is |lambda|/(2 pi),
+// damped_frequency_hz is Im(lambda)/(2 pi), damping_ratio is
+// -Re(lambda)/|lambda|. Samples are indexed from 0 and sample i lies at
+// i/rate s.
+//
+// # Method
+//
+// Detect finds each release: the first sample at which a body channel
+// departs from its preceding rest by more than ThresholdK (8) noise sd for
+// 10 ms, with the noise measured robustly from first differences and the
+// rest level following slow drift; the event ends at the next 0.5 s of rest.
+// Fit then
+//
+//  1. cuts the fit window: from SettleS (0.1 s) after the release, because
+//     the release is not free decay (in a real drop the wheels land on the
+//     tyres and ring at wheel-hop frequency; the model applies an ideal
+//     step), to the rest that ends the event, where the decay amplitude has
+//     fallen to about 1.6 noise sd: the noise floor;
+//  2. removes the pre-release rest level and decimates to about 200 Hz
+//     (50 times the band's upper edge) with the Kaiser anti-alias FIR of
+//     package spectral;
+//  3. runs the eigensystem realization algorithm (ERA) on the block Hankel
+//     matrix of all channels for orders 2 to MaxOrder (20), keeps the
+//     physical poles in the band (0.5-4 Hz by default; damping ratio in
+//     (0, 0.9)) and marks each stable against the previous order (natural
+//     frequency within 1 %, damping ratio within 10 %, MAC over 0.98);
+//  4. groups the poles across orders, starts a Levenberg-Marquardt
+//     refinement of the sum of two damped exponentials with common poles,
+//     per-channel complex amplitudes and per-channel offsets from every pair
+//     of the four leading groups, and keeps the pair with the least residual;
+//  5. takes the shapes at the sensors from the fitted amplitudes, heave and
+//     pitch by least squares on w(s_k) = z - s_k theta (for two sensors
+//     theta = (w1 - w2)/(s2 - s1), z = (s2 w1 - s1 w2)/(s2 - s1)), pitch per
+//     bounce Re(theta/z), node 1/Re(theta/z), and labels the mode whose node
+//     lies farther from the CG bounce; the MAC of the two shapes and the
+//     normalised residual say how distinct the modes are and how well the
+//     model fits;
+//  6. gives standard deviations from kappa s^2 (J^T J)^-1 (s^2 the residual
+//     variance, J the Jacobian at the solution) by the delta method. After
+//     decimation the noise samples are correlated; kappa = 1/(q sum h^2)
+//     for taps h and factor q is the ratio of the filtered noise density at
+//     the body modes to that of white noise of the same variance, so the N
+//     fitted samples count as N/kappa independent ones (kappa = 1 without
+//     decimation; 1.04 for the default filter). The node's sigma is
+//     sigma_ppb/ppb^2 and is +Inf when the pitch per bounce is within two of
+//     its sigmas of zero (the node may lie at infinity);
+//  7. computes the one-mode logarithmic decrement per channel as a quick
+//     estimate, flagged invalid when the fitted modes' half-power bands
+//     overlap.
+//
+// # Accuracy (measured; rerun go test -v -run 'Accuracy|Coverage|Table')
+//
+// On 24 seeded simulated drops (compare/simulate: invented cars with damping
+// ratios 0.1-0.4 and modes 15-40 % apart at 0.9-2.6 Hz, sensors inboard of
+// the axles, 2 % noise of each channel's peak, DC offsets, 100-1000 Hz,
+// default options) both modes are found in every case, and the stated sigmas
+// cover the errors: 95 % of the errors in frequency, damping ratio, pitch
+// per bounce and node lie within 2 sigma (22 nodes with an infinite sigma
+// left out), none of the first three beyond 4 sigma; a 40-run Monte Carlo per rate gives 90-100 % within 2 sigma and an
+// RMS error of 0.8-1.2 sigma. The accuracy itself is set by how strongly the
+// drop excites each mode. A drop of both axles at once excites the
+// pitch-like mode weakly on many cars; in 15 of the 48 modes its initial
+// amplitude is under a quarter of the channel peak (under 12 noise sd).
+// Of all 48 modes, 32 meet 1 % in natural frequency, 38 meet 0.02 in
+// damping ratio and 28 meet 10 % in node (a node beyond a wheelbase L:
+// pitch per bounce within 0.1/L). Every value whose sigma claims it (3 sigma
+// inside the aim) meets the aim. The worst errors of the well-excited modes
+// are 9 % in frequency (two modes 17 % apart with damping ratios 0.31 and
+// 0.34, logged at 100 Hz; its sigma says 16 %), 0.04 in damping ratio, and
+// a node off by a factor of several where its pitch per bounce is uncertain;
+// of the weak modes, tens of percent. Without noise the fit returns the model's poles
+// and shapes to 1e-9.
+//
+// Log decrement against the fit on the same logs (TestLogDecrementTable;
+// true damping ratios with natural frequencies, fitted, and the decrement
+// of each channel):
+//
+//	| case | rate Hz | true zeta (f Hz)           | fit zeta     | log decrement zeta  | valid |
+//	| 1    | 200     | 0.199 (1.09), 0.273 (1.51) | 0.199, 0.291 | 0.167, 0.181        | false |
+//	| 2    | 500     | 0.211 (1.45), 0.269 (1.85) | 0.142, 0.271 | 0.247, 0.228, 0.242 | false |
+//	| 3    | 1000    | 0.285 (1.11), 0.390 (1.52) | 0.950, 0.388 | 0.358, 0.362, 0.367 | false |
+//	| 4    | 100     | 0.336 (1.12), 0.308 (1.31) | 0.304, 0.317 | NaN, 0.275          | false |
+//	| 5    | 200     | 0.153 (0.96), 0.194 (1.16) | 0.164, 0.194 | 0.155, 0.151        | false |
+//	| 6    | 500     | 0.192 (1.18), 0.250 (1.57) | 0.191, 0.250 | 0.161, 0.176        | false |
+//	| 7    | 1000    | 0.229 (1.49), 0.305 (2.06) | 0.230, 0.324 | 0.228, 0.202        | false |
+//	| 8    | 100     | 0.248 (1.31), 0.311 (1.66) | 0.059, 0.316 | 0.293, 0.275        | true  |
+//
+// The decrement gives one number for two modes, lying between or below
+// them; median error 0.023 even counted against the nearer mode, against
+// 0.009 for the fit. The fit's misses in cases 2, 3 and 8 are weakly
+// excited modes, and their sigmas say so (0.05 to 3); case 8 shows that
+// the validity flag trusts the fit, and a badly fitted weak mode can hide
+// the overlap.
+//
+// # Where it breaks
+//
+//   - A mode the drop hardly excites (under about 10 noise sd at every
+//     sensor) is still returned, with a large sigma, but its values are not
+//     useful. Drop one axle at a time, or put the sensors farther apart, to
+//     excite and see pitch.
+//   - Two modes under about 15 % apart with damping ratios over 0.3 trade
+//     energy between them: sigmas of 5-15 % in frequency. More sensors or a
+//     second drop (fit each, average) help.
+//   - The node's sigma is linearised through 1/ppb: for a nearly pure
+//     bounce it is only a guide (hence +Inf near ppb = 0).
+//   - The model is two modes: wheel hop, tyre or bump-stop contact inside
+//     the window, or a non-linear damper, show up as a poor fit
+//     (WarnPoorFit); raise SettleS. The noise estimate assumes the log is at
+//     rest more than half of the time.
+//   - The log decrement is a one-mode estimate and fails on close modes, as
+//     the table shows.
+//
+// # References
+//
+//   - J.-N. Juang and R. S. Pappa, "An eigensystem realization algorithm for
+//     modal parameter identification and model reduction", Journal of
+//     Guidance, Control, and Dynamics 8(5):620-627, 1985, doi:10.2514/3.20031.
+//   - K. Levenberg, Quarterly of Applied Mathematics 2:164-168, 1944;
+//     D. W. Marquardt, Journal of the Society for Industrial and Applied
+//     Mathematics 11(2):431-441, 1963 (the refinement).
+//   - R. J. Allemang and D. L. Brown, "A correlation coefficient for modal
+//     vector analysis", Proc. IMAC I, Orlando, 1982, pp. 110-116 (MAC, via
+//     compare.MAC).
+//   - J. F. Kaiser, Proc. IEEE ISCAS 1974, pp. 20-23 (the anti-alias window,
+//     in package spectral).
+//   - The logarithmic decrement of a one-degree-of-freedom free vibration,
+//     e.g. W. T. Thomson and M. D. Dahleh, Theory of Vibration with
+//     Applications, 5th ed., 1998 [memory].
+//   - The stabilisation tolerances follow the usual practice of the trade
+//     [memory]; the damping tolerance is widened for heavy damping.
+package decay

@@ -1,0 +1,214 @@
+package cli
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/identify/modal"
+	"github.com/ridemodes/ridemodes/ingest"
+	"github.com/ridemodes/ridemodes/plots"
+)
+
+// bandErrorSDs is the width of the FRF error band drawn in the report, in
+// standard deviations of |H| on each side (about a 95 % band).
+const bandErrorSDs = 2
+
+// writeReport writes the HTML report of an analysis and its figures into dir.
+func writeReport(dir string, a *analysis) error {
+	in := plots.ReportInput{
+		Title:   "Body bounce and pitch: " + a.result.Test + " test",
+		Vehicle: a.setup.Vehicle.Name,
+		Result:  a.result,
+		Shapes:  shapeData(a.result, a.setup),
+	}
+	if a.result.Analysis != nil {
+		in.Choices = a.result.Analysis.Choices
+	}
+	if a.fit != nil {
+		in.FRF = frfData(a)
+		in.Indicator, in.Stabilisation = indicatorData(a)
+	}
+	if a.decay != nil {
+		in.Decay = decayData(a)
+	}
+	_, err := plots.WriteReport(dir, in)
+	return err
+}
+
+// usableBins returns the FRF bins inside the fit band where every FRF and
+// the indicator are finite.
+func usableBins(set *modal.FRFSet, cmif modal.CMIF, loHz, hiHz float64) []int {
+	var bins []int
+next:
+	for k, f := range set.FreqHz {
+		if f < loHz || f > hiHz {
+			continue
+		}
+		for o := range set.H {
+			for i := range set.H[o] {
+				if h := set.H[o][i][k]; cmplx.IsNaN(h) || cmplx.IsInf(h) || cmplx.Abs(h) == 0 {
+					continue next
+				}
+			}
+		}
+		for _, sv := range cmif.Singular {
+			if !(sv[k] > 0) || math.IsInf(sv[k], 0) {
+				continue next
+			}
+		}
+		bins = append(bins, k)
+	}
+	return bins
+}
+
+func markers(ms []compare.ModeJSON) []plots.Marker {
+	var out []plots.Marker
+	for _, m := range ms {
+		out = append(out, plots.Marker{Label: m.Label, FreqHz: m.NaturalFrequencyHz})
+	}
+	return out
+}
+
+// frfData sets the measured FRFs, their error bands and the fitted model
+// side by side over the fit band.
+func frfData(a *analysis) *plots.FRFData {
+	set, fit := a.frfSet, a.fit
+	cmif := modal.Indicator(set)
+	bins := usableBins(set, cmif, fit.BandLowHz, fit.BandHighHz)
+	d := &plots.FRFData{MagnitudeUnit: "-", Markers: markers(a.result.Modes)}
+	for _, k := range bins {
+		d.FreqHz = append(d.FreqHz, set.FreqHz[k])
+	}
+	for o := range set.H {
+		for i := range set.H[o] {
+			c := plots.FRFCurve{Name: set.OutputNames[o] + " / " + set.InputNames[i]}
+			for _, k := range bins {
+				h := set.H[o][i][k]
+				mag := cmplx.Abs(h)
+				// The band is multiplicative, |H| exp(+-2 eps) with eps = sigma/|H|:
+				// the same as |H| (1 +- 2 eps) to first order, and never negative.
+				eps := set.SigmaAbs[o][i][k] / mag
+				fm := fit.ModelFRF(o, i, set.FreqHz[k])
+				c.Magnitude = append(c.Magnitude, mag)
+				c.PhaseDeg = append(c.PhaseDeg, cmplx.Phase(h)*180/math.Pi)
+				c.Lower = append(c.Lower, mag*math.Exp(-bandErrorSDs*eps))
+				c.Upper = append(c.Upper, mag*math.Exp(bandErrorSDs*eps))
+				c.FitMagnitude = append(c.FitMagnitude, cmplx.Abs(fm))
+				c.FitPhaseDeg = append(c.FitPhaseDeg, cmplx.Phase(fm)*180/math.Pi)
+			}
+			unwrapDeg(c.PhaseDeg)
+			unwrapDeg(c.FitPhaseDeg)
+			d.Curves = append(d.Curves, c)
+		}
+		if o < len(set.Coherence) && set.Coherence[o] != nil {
+			s := plots.Series{Name: set.OutputNames[o]}
+			for _, k := range bins {
+				s.Values = append(s.Values, set.Coherence[o][k])
+			}
+			d.Coherence = append(d.Coherence, s)
+		}
+	}
+	return d
+}
+
+// indicatorData returns the mode indicator and the stabilisation figures' data.
+func indicatorData(a *analysis) (*plots.IndicatorData, *plots.StabData) {
+	set, fit := a.frfSet, a.fit
+	cmif := modal.Indicator(set)
+	bins := usableBins(set, cmif, fit.BandLowHz, fit.BandHighHz)
+	ind := &plots.IndicatorData{Unit: "-"}
+	for _, k := range bins {
+		ind.FreqHz = append(ind.FreqHz, cmif.FreqHz[k])
+	}
+	for j, sv := range cmif.Singular {
+		s := plots.Series{Name: fmt.Sprintf("singular value %d", j+1)}
+		for _, k := range bins {
+			s.Values = append(s.Values, sv[k])
+		}
+		ind.Values = append(ind.Values, s)
+	}
+	for _, q := range fit.Quick {
+		ind.Peaks = append(ind.Peaks, plots.Marker{Label: fmt.Sprintf("peak %.3f Hz", q.PeakHz), FreqHz: q.PeakHz})
+	}
+	st := &plots.StabData{Selected: markers(a.result.Modes), IndicatorFreqHz: ind.FreqHz}
+	if len(ind.Values) > 0 {
+		st.Indicator = ind.Values[0].Values
+	}
+	for _, p := range fit.Stabilisation.Points {
+		if !p.Physical {
+			continue
+		}
+		status := plots.PoleNew
+		switch p.Status {
+		case modal.PoleStable:
+			status = plots.PoleStable
+		case modal.PoleFrequencyStable:
+			status = plots.PoleFrequencyOnly
+		}
+		st.Poles = append(st.Poles, plots.StabPole{Order: p.Order, FreqHz: p.NaturalFrequencyHz, Status: status})
+	}
+	return ind, st
+}
+
+// shapeData draws each measured mode's shape beside the model's, from the
+// result alone (so it serves any route).
+func shapeData(res *compare.Result, setup *ingest.Setup) *plots.ShapeData {
+	d := &plots.ShapeData{FrontM: setup.Vehicle.CGToFrontM, RearM: setup.Vehicle.CGToRearM}
+	for _, s := range setup.Sensors {
+		d.SensorXM = append(d.SensorXM, s.XM)
+	}
+	model := map[string]compare.ModeJSON{}
+	if res.Model != nil {
+		for _, m := range res.Model.Modes {
+			model[m.Label] = m
+		}
+	}
+	line := func(m compare.ModeJSON) *plots.ShapeLine {
+		if m.PitchPerBounceRadPerM == nil {
+			return nil
+		}
+		return &plots.ShapeLine{FreqHz: m.NaturalFrequencyHz, DampingRatio: m.DampingRatio,
+			PitchPerBounceRadPerM: *m.PitchPerBounceRadPerM}
+	}
+	for _, m := range res.Modes {
+		sm := plots.ShapeMode{Label: m.Label, Measured: line(m)}
+		if p, ok := model[m.Label]; ok {
+			sm.Model = line(p)
+		}
+		if len(m.SensorShape) == len(d.SensorXM) {
+			for _, w := range m.SensorShape {
+				sm.SensorW = append(sm.SensorW, w.Re)
+			}
+		}
+		if sm.Measured == nil && sm.Model == nil {
+			continue
+		}
+		d.Modes = append(d.Modes, sm)
+	}
+	if len(d.Modes) == 0 {
+		return nil
+	}
+	return d
+}
+
+// decayData shows the fitted window of a drop test: measured and fitted.
+func decayData(a *analysis) *plots.DecayData {
+	c := a.decay.Curves
+	d := &plots.DecayData{TimeS: c.TimeS, FitTimeS: c.TimeS, Unit: "m/s^2",
+		WindowStartS: a.decay.WindowStartS, WindowEndS: a.decay.WindowEndS}
+	for i, s := range a.setup.Sensors {
+		d.Measured = append(d.Measured, plots.Series{Name: s.Channel, Values: c.Measured[i]})
+		d.Fitted = append(d.Fitted, plots.Series{Name: s.Channel + " fit", Values: c.Fitted[i]})
+	}
+	return d
+}
+
+// unwrapDeg removes the 360 degree jumps of a phase curve in place, so a
+// phase passing -180 degrees is drawn as one line.
+func unwrapDeg(p []float64) {
+	for k := 1; k < len(p); k++ {
+		p[k] -= 360 * math.Round((p[k]-p[k-1])/360)
+	}
+}

@@ -1,0 +1,103 @@
+package cli
+
+import (
+	"fmt"
+	"io"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/ridemodes/ridemodes/compare"
+)
+
+// pm formats a value with its standard deviation, or the value alone.
+func pm(format string, v *float64, sd *float64) string {
+	if v == nil {
+		return "-"
+	}
+	s := fmt.Sprintf(format, *v)
+	if sd != nil && *sd > 0 {
+		s += " ±" + strings.TrimLeft(fmt.Sprintf(format, *sd), "+")
+	}
+	return s
+}
+
+func ptr(x float64) *float64 { return &x }
+
+// printSummary writes the terminal summary of an analyze or compare result.
+func printSummary(w io.Writer, res *compare.Result) {
+	if res.Log != nil {
+		fmt.Fprintf(w, "%s test, %s: %d samples at %g Hz (%.1f s)\n", res.Test, res.Log.Path, res.Log.Samples,
+			res.Log.SampleRateHz, res.Log.DurationS)
+	}
+	model := map[string]compare.ModeJSON{}
+	if res.Model != nil {
+		for _, m := range res.Model.Modes {
+			model[m.Label] = m
+		}
+	}
+	cmp := map[string]compare.Comparison{}
+	for _, c := range res.Comparison {
+		cmp[c.Label] = c
+	}
+	fmt.Fprintln(w, "\nBody modes: measured (± one standard deviation) beside the design model")
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "mode\tf_n [Hz]\tzeta [-]\tnode [m]\tpitch/bounce [rad/m]\t|\tmodel f_n\tmodel zeta\tmodel node\t|\tdiff f_n\tMAC")
+	for _, m := range res.Modes {
+		var sdF, sdZ, sdN, sdP *float64
+		if u := m.Uncertainty; u != nil {
+			sdF, sdZ, sdN, sdP = ptr(u.NaturalFrequencyHz), ptr(u.DampingRatio), u.NodeM, u.PitchPerBounceRadPerM
+		}
+		row := []string{m.Label, pm("%.4f", ptr(m.NaturalFrequencyHz), sdF), pm("%.3f", ptr(m.DampingRatio), sdZ),
+			pm("%+.3f", m.NodeM, sdN), pm("%+.4f", m.PitchPerBounceRadPerM, sdP), "|"}
+		if p, ok := model[m.Label]; ok {
+			row = append(row, fmt.Sprintf("%.4f", p.NaturalFrequencyHz), fmt.Sprintf("%.3f", p.DampingRatio), pm("%+.3f", p.NodeM, nil))
+		} else {
+			row = append(row, "-", "-", "-")
+		}
+		row = append(row, "|")
+		if c, ok := cmp[m.Label]; ok {
+			mac := "-"
+			if c.ShapeMeasured {
+				mac = fmt.Sprintf("%.3f", c.MAC)
+			}
+			row = append(row, fmt.Sprintf("%+.1f %%", c.DifferencePct), mac)
+		} else {
+			row = append(row, "-", "-")
+		}
+		fmt.Fprintln(tw, strings.Join(row, "\t"))
+	}
+	tw.Flush()
+	if u := res.Updated; u != nil {
+		fmt.Fprintf(w, "\nEffective rates that make the model match (%s):\n", u.Method)
+		var sd compare.UpdatedUncertainty
+		if u.Uncertainty != nil {
+			sd = *u.Uncertainty
+		}
+		fmt.Fprintf(w, "  front ride rate   %s N/m\n  rear ride rate    %s N/m\n",
+			pm("%.0f", ptr(u.FrontRateNPerM), ptr(sd.FrontRateNPerM)), pm("%.0f", ptr(u.RearRateNPerM), ptr(sd.RearRateNPerM)))
+		if u.DampingEstimated {
+			fmt.Fprintf(w, "  front damping     %s N s/m\n  rear damping      %s N s/m\n",
+				pm("%.0f", ptr(u.FrontDampingNsPerM), sd.FrontDampingNsPerM), pm("%.0f", ptr(u.RearDampingNsPerM), sd.RearDampingNsPerM))
+		}
+		if u.PitchInertiaKgm2 != nil {
+			fmt.Fprintf(w, "  pitch inertia     %s kg m^2\n", pm("%.0f", u.PitchInertiaKgm2, sd.PitchInertiaKgm2))
+		}
+		for _, o := range u.OtherRoots {
+			fmt.Fprintf(w, "  (another root fits the frequencies too: front %.0f N/m, rear %.0f N/m; %s)\n",
+				o.FrontRateNPerM, o.RearRateNPerM, u.RootChoice)
+		}
+	}
+	if len(res.Checks) > 0 {
+		fmt.Fprintln(w, "\nChecks")
+		for _, c := range res.Checks {
+			fmt.Fprintf(w, "  [%s] %s: %s\n", strings.ToUpper(c.Status), c.Name, c.Detail)
+		}
+	}
+	if len(res.Warnings) > 0 {
+		fmt.Fprintln(w, "\nWarnings")
+		for _, s := range res.Warnings {
+			fmt.Fprintf(w, "  - %s\n", s)
+		}
+	}
+	fmt.Fprintln(w, "\nEngineering estimates, not a certification; see the safety notes in --help.")
+}

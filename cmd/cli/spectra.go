@@ -74,7 +74,7 @@ resolution bias) are printed.`,
 				return err
 			}
 			out := cmd.OutOrStdout()
-			fmt.Fprintf(out, "read %s: %d samples at %g Hz (%.1f s)\n", logPath, sum.Samples, sum.SampleRateHz, sum.DurationS)
+			fmt.Fprintf(out, "read %s: %d samples at %.6g Hz (%.1f s)\n", logPath, sum.Samples, sum.SampleRateHz, sum.DurationS)
 			for _, w := range sum.Warnings {
 				fmt.Fprintf(out, "warning: %s\n", w)
 			}

@@ -26,7 +26,7 @@ func ptr(x float64) *float64 { return &x }
 // printSummary writes the terminal summary of an analyze or compare result.
 func printSummary(w io.Writer, res *compare.Result) {
 	if res.Log != nil {
-		fmt.Fprintf(w, "%s test, %s: %d samples at %g Hz (%.1f s)\n", res.Test, res.Log.Path, res.Log.Samples,
+		fmt.Fprintf(w, "%s test, %s: %d samples at %.6g Hz (%.1f s)\n", res.Test, res.Log.Path, res.Log.Samples,
 			res.Log.SampleRateHz, res.Log.DurationS)
 	}
 	model := map[string]compare.ModeJSON{}

@@ -29,6 +29,10 @@ type Analysis struct {
 	BandHighHz    float64         `json:"band_high_hz"`
 	Choices       []string        `json:"choices"`
 	QuickEstimate []QuickEstimate `json:"quick_estimate,omitempty"`
+	// QuickEstimateNotes say where the quick estimate's assumptions fail
+	// (overlapping or heavily damped modes): expected on a car body, and the
+	// reason the fit, not the quick estimate, gives the modes.
+	QuickEstimateNotes []string `json:"quick_estimate_notes,omitempty"`
 	// FitResidual is the fit's normalised residual (0 for a perfect fit).
 	FitResidual float64 `json:"fit_residual"`
 	// ModeShapeMAC is the MAC between the two measured mode shapes (near 0:

@@ -29,3 +29,29 @@ func FitRig(frf *FRFResult, sensors []ingest.Sensor, opt modal.Options) (*modal.
 	fit, err := modal.Fit(set, opt)
 	return set, fit, err
 }
+
+// RigLogWarnings sorts the reader's data-quality warnings for a rig test.
+// The high-pass check of package ingest looks at one channel's spectrum
+// below 1 Hz, which a band-limited rig drive empties just as an AC-coupled
+// accelerometer does. When every pan shows the roll-off, the drive has no
+// content there and the check cannot tell the two apart: its warnings are
+// dropped and a note says so. A roll-off on some channels only is kept.
+func RigLogWarnings(ws []ingest.Warning, inputs []ingest.Input) (kept []ingest.Warning, note string) {
+	hp := map[string]bool{}
+	for _, w := range ws {
+		if w.Code == ingest.WarnHighPass {
+			hp[w.Channel] = true
+		}
+	}
+	for _, in := range inputs {
+		if !hp[in.Channel] {
+			return ws, ""
+		}
+	}
+	for _, w := range ws {
+		if w.Code != ingest.WarnHighPass {
+			kept = append(kept, w)
+		}
+	}
+	return kept, "every pan's spectrum falls away below 1 Hz, so the drive has no content there: the log cannot show whether the accelerometers are AC-coupled (high-pass); check their data sheets"
+}

@@ -135,8 +135,16 @@ func runAnalyze(logPath string, af *analyzeFlags, out io.Writer) (*analysis, boo
 	if res.Log.Notes == nil {
 		res.Log.Notes = []string{}
 	}
-	logWarnings := make([]string, 0, len(sum.Warnings))
-	for _, w := range sum.Warnings {
+	quality := sum.Warnings
+	if res.Test == "rig" {
+		var note string
+		quality, note = identify.RigLogWarnings(quality, setup.Inputs)
+		if note != "" {
+			res.Analysis.Choices = append(res.Analysis.Choices, note)
+		}
+	}
+	logWarnings := make([]string, 0, len(quality))
+	for _, w := range quality {
 		logWarnings = append(logWarnings, w.String())
 	}
 	res.Warnings = append(logWarnings, res.Warnings...)
@@ -213,7 +221,12 @@ func analyzeRig(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (i
 			NaturalFrequencyHz: q.NaturalFrequencyHz, DampingRatio: finiteOrNil(q.DampingRatio)})
 	}
 	for _, w := range fit.Warnings {
-		res.Warnings = append(res.Warnings, w.Message)
+		switch w.Code {
+		case modal.WarnOverlap, modal.WarnHeavyDamping, modal.WarnNoHalfPower, modal.WarnNoPeak:
+			res.Analysis.QuickEstimateNotes = append(res.Analysis.QuickEstimateNotes, w.Message)
+		default:
+			res.Warnings = append(res.Warnings, w.Message)
+		}
 	}
 	method := fmt.Sprintf("rig: %s FRFs, common-pole rational fraction polynomial fit (order %d) refined by weighted least squares",
 		frf.FRF.Method, fit.Order)

@@ -75,7 +75,7 @@ and "ridemodes simulate" to make a synthetic log for planning a test.`,
 	root.SetFlagErrorFunc(func(cmd *cobra.Command, err error) error {
 		return usageError{fmt.Errorf("%w (see %s --help)", err, cmd.CommandPath())}
 	})
-	root.AddCommand(newModelCmd(), newSimulateCmd(), newSpectraCmd(), newAnalyzeCmd(), newCompareCmd())
+	root.AddCommand(newModelCmd(), newSimulateCmd(), newSpectraCmd(), newAnalyzeCmd(), newCompareCmd(), newDemoCmd())
 	return root
 }
 

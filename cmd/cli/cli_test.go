@@ -3,6 +3,7 @@ package cli
 import (
 	"bytes"
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -135,5 +136,29 @@ func TestHelpCarriesCautions(t *testing.T) {
 	_, out, _ := run(t, "simulate", "--help")
 	if !strings.Contains(out, "Safety: rig and drop tests can hurt people") || !strings.Contains(out, "licensed practice") {
 		t.Errorf("simulate --help lacks the cautions:\n%s", out)
+	}
+}
+
+func TestDemo(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "demo")
+	code, out, errs := run(t, "demo", "--out", dir)
+	if code != exitOK {
+		t.Fatalf("demo: exit %d\n%s\n%s", code, out, errs)
+	}
+	for _, f := range []string{"design.toml", "design-drop.toml", "built.toml", "rig.csv", "drop.csv",
+		"result.json", "drop-result.json", "report/report.html", "drop-report/report.html"} {
+		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
+			t.Errorf("demo did not write %s", f)
+		}
+	}
+	// The demo's car was built with a rear rate 10 % over design (built.toml):
+	// the back-calculated rear rate must show it (within 2 %, issue 6).
+	res := readResult(t, filepath.Join(dir, "result.json"))
+	if r := res.Updated.RearRateNPerM / 45100; math.Abs(r-1) > 0.02 {
+		t.Errorf("demo rear rate %.0f N/m, built 45100", res.Updated.RearRateNPerM)
+	}
+	// A second run into the same folder refuses to overwrite it.
+	if code, _, errs := run(t, "demo", "--out", dir); code != exitUsage || !strings.Contains(errs, "not empty") {
+		t.Errorf("second demo: exit %d, %s", code, errs)
 	}
 }

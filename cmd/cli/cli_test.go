@@ -162,3 +162,19 @@ func TestDemo(t *testing.T) {
 		t.Errorf("second demo: exit %d, %s", code, errs)
 	}
 }
+
+func TestModelShowsRideRateBuildUp(t *testing.T) {
+	// The coupe example builds its ride rates from springs, motion ratios and
+	// tyres: 118 kN/m x 0.72^2 = 61171 N/m wheel rate, in series with 520 kN/m
+	// gives 54733 N/m (Gillespie 1992: wheel rate = spring rate x ratio^2,
+	// ride rate = wheel and tyre in series).
+	code, out, errs := run(t, "model", "--setup", "../../testdata/example/coupe-springs.toml")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"wheel 61171 N/m", "ride 54733 N/m", "Ride guidance", "[PASS]"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("model output lacks %q:\n%s", want, out)
+		}
+	}
+}

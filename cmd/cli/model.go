@@ -41,7 +41,11 @@ farther from the CG is labelled bounce, the other pitch.`,
 				return fmt.Errorf("%s: %w", setupPath, err)
 			}
 			damped := v.FrontDampingNsPerM > 0 || v.RearDampingNsPerM > 0
-			printModel(cmd.OutOrStdout(), setup, modes, damped)
+			guidance, err := compare.ModelGuidance(v)
+			if err != nil {
+				return fmt.Errorf("%s: %w", setupPath, err)
+			}
+			printModel(cmd.OutOrStdout(), setup, modes, damped, guidance)
 			if jsonPath == "" {
 				return nil
 			}
@@ -52,6 +56,7 @@ farther from the CG is labelled bounce, the other pitch.`,
 			if err != nil {
 				return err
 			}
+			res.Checks = guidance
 			data, err := res.Marshal()
 			if err != nil {
 				return err
@@ -113,7 +118,7 @@ func fmtOpt(format string, x float64) string {
 	return fmt.Sprintf(format, x)
 }
 
-func printModel(w io.Writer, setup *ingest.Setup, modes []compare.Mode, damped bool) {
+func printModel(w io.Writer, setup *ingest.Setup, modes []compare.Mode, damped bool, guidance []compare.Check) {
 	name := setup.Vehicle.Name
 	if name == "" {
 		name = "vehicle"
@@ -127,5 +132,10 @@ func printModel(w io.Writer, setup *ingest.Setup, modes []compare.Mode, damped b
 			fmtOpt("%+.4f", m.PitchPerBounceRadPerM), fmtOpt("%+.3f", m.NodeM), nodeWords(m.NodeM))
 	}
 	tw.Flush()
+	fmt.Fprintln(w, "\nRide rates (per axle, at the wheel centre)")
+	for _, r := range compare.RideRates(setup.Vehicle) {
+		fmt.Fprintf(w, "  %s\n", r)
+	}
+	printChecks(w, "Ride guidance (design stage; guidance, never a verdict)", guidance)
 	fmt.Fprintln(w, "\nAxes: ISO 8855 (x forward, z up, pitch positive nose-down); positions from the CG, positive forward.")
 }

@@ -79,6 +79,14 @@ func printSummary(w io.Writer, res *compare.Result) {
 			fmt.Fprintf(w, "  front damping     %s N s/m\n  rear damping      %s N s/m\n",
 				pm("%.0f", ptr(u.FrontDampingNsPerM), sd.FrontDampingNsPerM), pm("%.0f", ptr(u.RearDampingNsPerM), sd.RearDampingNsPerM))
 		}
+		for _, sp := range []struct {
+			axle string
+			v    *float64
+		}{{"front", u.FrontSpringRateNPerM}, {"rear", u.RearSpringRateNPerM}} {
+			if sp.v != nil {
+				fmt.Fprintf(w, "  %s spring rate %.0f N/m would give it (same motion ratio and tyre)\n", sp.axle, *sp.v)
+			}
+		}
 		if u.PitchInertiaKgm2 != nil {
 			fmt.Fprintf(w, "  pitch inertia     %s kg m^2\n", pm("%.0f", u.PitchInertiaKgm2, sd.PitchInertiaKgm2))
 		}
@@ -87,12 +95,7 @@ func printSummary(w io.Writer, res *compare.Result) {
 				o.FrontRateNPerM, o.RearRateNPerM, u.RootChoice)
 		}
 	}
-	if len(res.Checks) > 0 {
-		fmt.Fprintln(w, "\nChecks")
-		for _, c := range res.Checks {
-			fmt.Fprintf(w, "  [%s] %s: %s\n", strings.ToUpper(c.Status), c.Name, c.Detail)
-		}
-	}
+	printChecks(w, "Checks", res.Checks)
 	if len(res.Warnings) > 0 {
 		fmt.Fprintln(w, "\nWarnings")
 		for _, s := range res.Warnings {
@@ -100,4 +103,15 @@ func printSummary(w io.Writer, res *compare.Result) {
 		}
 	}
 	fmt.Fprintln(w, "\nEngineering estimates, not a certification; see the safety notes in --help.")
+}
+
+// printChecks lists checks under a heading, one line each.
+func printChecks(w io.Writer, heading string, checks []compare.Check) {
+	if len(checks) == 0 {
+		return
+	}
+	fmt.Fprintf(w, "\n%s\n", heading)
+	for _, c := range checks {
+		fmt.Fprintf(w, "  [%s] %s: %s\n", strings.ToUpper(c.Status), c.Name, c.Detail)
+	}
 }

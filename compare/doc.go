@@ -37,5 +37,7 @@
 // Im(lambda)/(2 pi), damping_ratio is -Re(lambda)/|lambda|. Pitch per bounce
 // is Re(theta/z) in rad/m and the node is the position z/theta where w
 // vanishes. Of the two body modes, the one whose node lies farther from the CG
-// is labelled bounce, the other pitch.
+// is labelled bounce, the other pitch. Kinematics (heave and pitch from a shape
+// at body sensors), NodeM and BodyLabels implement these rules for every
+// package that identifies modes, and MAC compares shapes.
 package compare

@@ -119,11 +119,7 @@ func newMode(pole complex128, z, theta complex128, lref float64) Mode {
 		r := theta / z
 		m.Shape = [2]complex128{1, r}
 		m.PitchPerBounceRadPerM = real(r)
-		if math.Abs(real(r))*lref > negligible {
-			m.NodeM = 1 / real(r)
-		} else {
-			m.NodeM = math.NaN()
-		}
+		m.NodeM = NodeM(real(r), lref)
 	default:
 		m.Shape = [2]complex128{z / theta, 1}
 		m.PitchPerBounceRadPerM = math.NaN()
@@ -132,23 +128,10 @@ func newMode(pole complex128, z, theta complex128, lref float64) Mode {
 	return m
 }
 
-// nodeDistance is |node| with a missing node (pure bounce) counted as infinitely far.
-func nodeDistance(m Mode) float64 {
-	if math.IsNaN(m.NodeM) {
-		return math.Inf(1)
-	}
-	return math.Abs(m.NodeM)
-}
-
-// labelModes sorts the two modes by natural frequency and labels them: the mode
-// whose node lies farther from the CG is bounce, the other pitch.
+// labelModes sorts the two modes by natural frequency and labels them (BodyLabels).
 func labelModes(ms []Mode) {
 	sort.Slice(ms, func(i, j int) bool { return ms[i].NaturalFrequencyHz < ms[j].NaturalFrequencyHz })
-	b := 0
-	if nodeDistance(ms[1]) > nodeDistance(ms[0]) {
-		b = 1
-	}
-	ms[b].Label, ms[1-b].Label = "bounce", "pitch"
+	ms[0].Label, ms[1].Label = BodyLabels(ms[0].NodeM, ms[1].NodeM)
 }
 
 // UndampedModes returns the two modes of the undamped model (damping

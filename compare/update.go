@@ -8,6 +8,8 @@ import (
 
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
+
+	"github.com/ridemodes/ridemodes/identify/lsq"
 )
 
 // UpdateOptions steer UpdateModel.
@@ -63,8 +65,9 @@ const fdStep = 1e-6
 // candidates and ChooseRoot picks one by the measured shapes. When more is
 // measured than the unknowns need (a pitch per bounce besides the
 // frequencies and damping), a weighted least-squares fit starts from that
-// root, weights 1/sigma^2; with opt.FreePitchInertia the pitch inertia is
-// fitted too.
+// root, weights 1/sigma^2, by Levenberg-Marquardt (package identify/lsq)
+// with central-difference Jacobians (gonum diff/fd); with
+// opt.FreePitchInertia the pitch inertia is fitted too.
 //
 // Uncertainty: for the closed form, sigma_p^2 = sum_i (dp/dy_i)^2 sigma_i^2
 // over the measured frequencies and damping ratios y_i (independent), with
@@ -319,9 +322,11 @@ func (u *Update) leastSquares(obs []observation, freeJ bool) error {
 			dst[i] = (f[i] - o.value) / o.sigma
 		}
 	}
-	x, err := levenbergMarquardt(resid, len(obs), make([]float64, len(scale)))
+	x := make([]float64, len(scale))
+	lm, err := lsq.Minimize(lsq.Differenced(resid, fd.Central, fdStep), len(obs), x, lsq.Settings{})
 	if err != nil {
-		return err
+		return fmt.Errorf("compare: the least-squares update did not converge in %d iterations; "+
+			"check the measured modes and their uncertainties", lsq.DefaultMaxIterations)
 	}
 	v := vehicleAt(x)
 	f, err := fitted(v)
@@ -329,10 +334,8 @@ func (u *Update) leastSquares(obs []observation, freeJ bool) error {
 		return fmt.Errorf("compare: the least-squares update ended outside the oscillating region: %w", err)
 	}
 
-	jac := mat.NewDense(len(obs), len(x), nil)
-	fd.Jacobian(jac, resid, x, &fd.JacobianSettings{Formula: fd.Central, Step: fdStep})
 	var jtj mat.SymDense
-	jtj.SymOuterK(1, jac.T())
+	jtj.SymOuterK(1, lm.J.T())
 	var chol mat.Cholesky
 	if !chol.Factorize(&jtj) {
 		return ErrNotIdentifiable
@@ -404,83 +407,4 @@ func (u *Update) JSON() *Updated {
 		out.Uncertainty = uu
 	}
 	return out
-}
-
-// Iteration limits of levenbergMarquardt.
-const (
-	lmMaxIterations = 200
-	lmRelativeTol   = 1e-12 // stop when the cost falls by less than this fraction
-)
-
-// levenbergMarquardt minimises the sum of squares of the n residuals resid
-// from x0 and returns the minimiser. The Jacobian comes from central
-// differences (gonum diff/fd), the damped normal equations
-// (J^T J + mu diag(J^T J)) dx = -J^T r are solved with gonum mat.
-//
-// Written by hand because gonum/optimize (a general minimiser, without a
-// least-squares method) imports stat/distmv, whose dependency has no go.sum
-// entry in this module; the structure of a sum of squares also makes this the
-// better method here.
-//
-// References: K. Levenberg, "A method for the solution of certain non-linear
-// problems in least squares", Quarterly of Applied Mathematics 2(2):164-168,
-// 1944; D. W. Marquardt, "An algorithm for least-squares estimation of
-// nonlinear parameters", J. SIAM 11(2):431-441, 1963, doi:10.1137/0111030.
-func levenbergMarquardt(resid func(dst, x []float64), n int, x0 []float64) ([]float64, error) {
-	p := len(x0)
-	x := append([]float64(nil), x0...)
-	r := make([]float64, n)
-	cost := func(x []float64) float64 {
-		resid(r, x)
-		s := 0.0
-		for _, v := range r {
-			s += v * v
-		}
-		return s
-	}
-	c := cost(x)
-	mu := 1e-3
-	jac := mat.NewDense(n, p, nil)
-	trial := make([]float64, p)
-	for it := 0; it < lmMaxIterations; it++ {
-		resid(r, x)
-		fd.Jacobian(jac, resid, x, &fd.JacobianSettings{Formula: fd.Central, Step: fdStep})
-		var jtj mat.Dense
-		jtj.Mul(jac.T(), jac)
-		var g mat.VecDense
-		g.MulVec(jac.T(), mat.NewVecDense(n, r))
-		improved := false
-		for !improved && mu < 1e12 {
-			a := mat.DenseCopyOf(&jtj)
-			for i := 0; i < p; i++ {
-				a.Set(i, i, jtj.At(i, i)*(1+mu))
-			}
-			var dx mat.VecDense
-			if err := dx.SolveVec(a, &g); err != nil {
-				mu *= 10
-				continue
-			}
-			for i := range x {
-				trial[i] = x[i] - dx.AtVec(i)
-			}
-			ct := cost(trial)
-			if ct <= c {
-				improved = true
-				done := c-ct <= lmRelativeTol*c || c == 0
-				copy(x, trial)
-				c = ct
-				mu = math.Max(mu/3, 1e-12)
-				if done {
-					return x, nil
-				}
-			} else {
-				mu *= 2
-			}
-		}
-		if !improved {
-			return x, nil // no descent left: a minimum to the precision of the differences
-		}
-	}
-	return nil, fmt.Errorf("compare: the least-squares update did not converge in %d iterations; "+
-		"check the measured modes and their uncertainties", lmMaxIterations)
 }

@@ -130,7 +130,8 @@
 //     Guidance, Control, and Dynamics 8(5):620-627, 1985, doi:10.2514/3.20031.
 //   - K. Levenberg, Quarterly of Applied Mathematics 2:164-168, 1944;
 //     D. W. Marquardt, Journal of the Society for Industrial and Applied
-//     Mathematics 11(2):431-441, 1963 (the refinement).
+//     Mathematics 11(2):431-441, 1963 (the refinement, solved by package
+//     identify/lsq).
 //   - R. J. Allemang and D. L. Brown, "A correlation coefficient for modal
 //     vector analysis", Proc. IMAC I, Orlando, 1982, pp. 110-116 (MAC, via
 //     compare.MAC).

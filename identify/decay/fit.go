@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/identify/lsq"
 	"github.com/ridemodes/ridemodes/identify/spectral"
 )
 
@@ -402,21 +403,12 @@ func (d decimated) shortError(event, need int) error {
 }
 
 // modesWithSigma builds the modes from the refined parameters and their
-// covariance (delta method), labels them and sorts them by frequency.
+// covariance (delta method), with heave and pitch by the sensors'
+// kinematics (compare.Kinematics), sorts them by frequency and labels them
+// (compare.BodyLabels).
 func modesWithSigma(m expModel, p []float64, cov *mat.SymDense, posM []float64) []Mode {
 	nch := m.nch()
-	// Kinematics: w_c = z - s_c theta, least squares (z, theta) = P w.
-	g := mat.NewDense(nch, 2, nil)
-	for c, s := range posM {
-		g.Set(c, 0, 1)
-		g.Set(c, 1, -s)
-	}
-	var gtg, pinv mat.Dense
-	gtg.Mul(g.T(), g)
-	if err := gtg.Inverse(&gtg); err != nil {
-		panic("decay: sensor positions give a singular kinematic matrix") // excluded by checkPositions
-	}
-	pinv.Mul(&gtg, g.T())
+	kin := compare.NewKinematics(posM)
 	np := m.params()
 	ms := make([]Mode, m.modes)
 	for r := range ms {
@@ -429,11 +421,7 @@ func modesWithSigma(m expModel, p []float64, cov *mat.SymDense, posM []float64) 
 		for c := range psi {
 			psi[c] = m.amplitude(p, r, c)
 		}
-		var z, th complex128
-		for c := range psi {
-			z += complex(pinv.At(0, c), 0) * psi[c]
-			th += complex(pinv.At(1, c), 0) * psi[c]
-		}
+		z, th := kin.HeavePitch(psi)
 		md.HeaveAndPitch = [2]complex128{1, th / z}
 		md.ShapeAtSensors = make([]complex128, nch)
 		for c := range psi {
@@ -441,10 +429,7 @@ func modesWithSigma(m expModel, p []float64, cov *mat.SymDense, posM []float64) 
 		}
 		ppb := real(th / z)
 		md.PitchPerBounceRadPerM = ppb
-		md.NodeM = math.NaN()
-		if ppb != 0 {
-			md.NodeM = 1 / ppb
-		}
+		md.NodeM = kin.NodeM(ppb)
 		// Gradients with respect to the parameter vector.
 		gf := make([]float64, np)
 		gz := make([]float64, np)
@@ -455,7 +440,7 @@ func modesWithSigma(m expModel, p []float64, cov *mat.SymDense, posM []float64) 
 		gd[2*r+1] = 1 / (2 * math.Pi)
 		for c := range psi {
 			// d(theta/z)/d psi_c, with psi_c = (a - i b)/2.
-			dr := (complex(pinv.At(1, c), 0)*z - th*complex(pinv.At(0, c), 0)) / (z * z)
+			dr := (complex(kin.ThetaWeights[c], 0)*z - th*complex(kin.ZWeights[c], 0)) / (z * z)
 			i := m.ampIndex(r, c)
 			gp[i], gp[i+1] = real(dr)/2, imag(dr)/2
 		}
@@ -473,7 +458,10 @@ func modesWithSigma(m expModel, p []float64, cov *mat.SymDense, posM []float64) 
 		}
 		ms[r] = md
 	}
-	labelModes(ms)
+	if ms[1].NaturalFrequencyHz < ms[0].NaturalFrequencyHz {
+		ms[0], ms[1] = ms[1], ms[0]
+	}
+	ms[0].Label, ms[1].Label = compare.BodyLabels(ms[0].NodeM, ms[1].NodeM)
 	return ms
 }
 
@@ -488,32 +476,12 @@ func quadSD(g []float64, cov *mat.SymDense) float64 {
 	return math.Sqrt(math.Max(mat.Inner(v, cov, v), 0))
 }
 
-// labelModes sorts the modes by natural frequency and labels them by the
-// contract's rule: the mode whose node lies farther from the CG (a missing
-// node counting as infinitely far) is bounce, the other pitch.
-func labelModes(ms []Mode) {
-	if ms[1].NaturalFrequencyHz < ms[0].NaturalFrequencyHz {
-		ms[0], ms[1] = ms[1], ms[0]
-	}
-	dist := func(md Mode) float64 {
-		if math.IsNaN(md.NodeM) {
-			return math.Inf(1)
-		}
-		return math.Abs(md.NodeM)
-	}
-	b := 0
-	if dist(ms[1]) > dist(ms[0]) {
-		b = 1
-	}
-	ms[b].Label, ms[1-b].Label = "bounce", "pitch"
-}
-
 // fillCurves stores the measured and fitted curves (log units), the
 // offsets, the residual per channel and the normalised residual.
 func fillCurves(res *Result, m expModel, p []float64, dec decimated, ev Event) {
 	nch := m.nch()
 	resid := make([]float64, m.rows())
-	m.evaluate(p, resid, nil)
+	m.evaluate(resid, nil, p)
 	res.Curves = Curves{TimeS: dec.tS, Measured: make([][]float64, nch), Fitted: make([][]float64, nch)}
 	res.Offsets = make([]float64, nch)
 	res.ResidualSD = make([]float64, nch)
@@ -526,7 +494,7 @@ func fillCurves(res *Result, m expModel, p []float64, dec decimated, ev Event) {
 		for k := range m.tS {
 			e := resid[k*nch+c]
 			res.Curves.Measured[c][k] = m.y[c][k] + ev.RestLevel[c]
-			res.Curves.Fitted[c][k] = res.Curves.Measured[c][k] - e
+			res.Curves.Fitted[c][k] = res.Curves.Measured[c][k] + e
 			rc += e * e
 			s := m.y[c][k] - p[m.offIndex(c)]
 			sig += s * s
@@ -621,13 +589,15 @@ func choosePair(m expModel, pts []StabilisationPoint, loHz, hiHz float64) (*pair
 			if m.linearStart(p) != nil {
 				continue
 			}
-			rss, jac, iters := m.refine(p)
+			// A start that runs out of iterations (lsq.ErrMaxIterations)
+			// still competes with the fit it reached.
+			lm, _ := lsq.Minimize(m.evaluate, m.rows(), p, lsq.Settings{})
 			if !physicalPair(m, p, loHz, hiHz) {
 				continue
 			}
-			if best == nil || rss < best.rss {
-				best = &pairChoice{groups: [2]poleGroup{groups[i], groups[j]}, params: p, rss: rss, jac: jac,
-					iterations: iters}
+			if best == nil || lm.Cost < best.rss {
+				best = &pairChoice{groups: [2]poleGroup{groups[i], groups[j]}, params: p, rss: lm.Cost, jac: lm.J,
+					iterations: lm.Iterations}
 			}
 		}
 	}

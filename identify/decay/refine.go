@@ -6,14 +6,6 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// Levenberg-Marquardt settings.
-const (
-	lmMaxIterations = 200
-	lmRelTol        = 1e-12 // stop when a step lowers the cost by less than this fraction
-	lmLambdaStart   = 1e-3
-	lmLambdaMax     = 1e12
-)
-
 // expModel is the sum of damped exponentials with common poles fitted to the
 // free decay:
 //
@@ -45,13 +37,14 @@ func (m expModel) amplitude(p []float64, r, c int) complex128 {
 	return complex(p[i], -p[i+1]) / 2
 }
 
-// evaluate fills the residual (data minus model), and the Jacobian of the
-// model when jac is not nil. Row k*nch + c is sample k of channel c.
-func (m expModel) evaluate(p []float64, res []float64, jac *mat.Dense) {
+// evaluate fills res with the residuals, model minus data, and jac (when
+// not nil) with their Jacobian, the model's: an lsq.Func. Row k*nch + c is
+// sample k of channel c.
+func (m expModel) evaluate(res []float64, jac *mat.Dense, p []float64) {
 	nch := m.nch()
 	for k, t := range m.tS {
 		for c := 0; c < nch; c++ {
-			res[k*nch+c] = m.y[c][k] - p[m.offIndex(c)]
+			res[k*nch+c] = p[m.offIndex(c)] - m.y[c][k]
 			if jac != nil {
 				jac.Set(k*nch+c, m.offIndex(c), 1)
 			}
@@ -64,7 +57,7 @@ func (m expModel) evaluate(p []float64, res []float64, jac *mat.Dense) {
 				i := m.ampIndex(r, c)
 				a, b := p[i], p[i+1]
 				v := a*ec + b*es
-				res[k*nch+c] -= v
+				res[k*nch+c] += v
 				if jac != nil {
 					row := k*nch + c
 					jac.Set(row, 2*r, -t*v)
@@ -105,74 +98,6 @@ func (m expModel) linearStart(p []float64) error {
 	return nil
 }
 
-// refine minimises the sum of squared residuals over p in place by
-// Levenberg-Marquardt with Marquardt's scaling (the damping term is lambda
-// times the diagonal of J^T J), solving each step by Cholesky (gonum's mat).
-// It returns the final residual sum of squares, the Jacobian at the solution
-// and the number of iterations.
-//
-// References: K. Levenberg, "A method for the solution of certain non-linear
-// problems in least squares", Quarterly of Applied Mathematics 2:164-168,
-// 1944; D. W. Marquardt, "An algorithm for least-squares estimation of
-// nonlinear parameters", Journal of the Society for Industrial and Applied
-// Mathematics 11(2):431-441, 1963.
-func (m expModel) refine(p []float64) (rss float64, jac *mat.Dense, iters int) {
-	nr, np := m.rows(), m.params()
-	res := make([]float64, nr)
-	trial := make([]float64, nr)
-	jac = mat.NewDense(nr, np, nil)
-	m.evaluate(p, res, jac)
-	rss = sumSquares(res)
-	lambda := lmLambdaStart
-	var jtj mat.SymDense
-	var g, step mat.VecDense
-	cand := make([]float64, np)
-	for iters = 0; iters < lmMaxIterations; iters++ {
-		jtj.SymOuterK(1, jac.T())
-		g.MulVec(jac.T(), mat.NewVecDense(nr, res)) // J^T r: the model's Jacobian, r = data - model
-		improved := false
-		for lambda <= lmLambdaMax {
-			aug := mat.NewSymDense(np, nil)
-			aug.CopySym(&jtj)
-			for i := 0; i < np; i++ {
-				aug.SetSym(i, i, jtj.At(i, i)*(1+lambda))
-			}
-			var ch mat.Cholesky
-			if !ch.Factorize(aug) {
-				lambda *= 10
-				continue
-			}
-			if err := ch.SolveVecTo(&step, &g); err != nil {
-				lambda *= 10
-				continue
-			}
-			for i := range cand {
-				cand[i] = p[i] + step.AtVec(i)
-			}
-			m.evaluate(cand, trial, nil)
-			if r := sumSquares(trial); r < rss {
-				done := rss-r < lmRelTol*rss
-				copy(p, cand)
-				rss = r
-				lambda = math.Max(lambda/10, 1e-12)
-				improved = true
-				if done {
-					m.evaluate(p, res, jac)
-					return rss, jac, iters + 1
-				}
-				break
-			}
-			lambda *= 10
-		}
-		if !improved {
-			break // no step lowers the cost: a minimum to working precision
-		}
-		m.evaluate(p, res, jac)
-	}
-	m.evaluate(p, res, jac)
-	return rss, jac, iters
-}
-
 // covariance returns kappa * s^2 (J^T J)^-1 with s^2 = rss/(rows - params).
 func (m expModel) covariance(jac *mat.Dense, rss, kappa float64) (*mat.SymDense, error) {
 	dof := m.rows() - m.params()
@@ -191,12 +116,4 @@ func (m expModel) covariance(jac *mat.Dense, rss, kappa float64) (*mat.SymDense,
 	}
 	cov.ScaleSym(kappa*rss/float64(dof), &cov)
 	return &cov, nil
-}
-
-func sumSquares(x []float64) float64 {
-	var s float64
-	for _, v := range x {
-		s += v * v
-	}
-	return s
 }

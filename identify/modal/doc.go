@@ -85,7 +85,8 @@
 //   - K. Levenberg, "A method for the solution of certain non-linear
 //     problems in least squares", Quart. Appl. Math. 2:164-168, 1944;
 //     D. W. Marquardt, "An algorithm for least-squares estimation of
-//     nonlinear parameters", J. SIAM 11(2):431-441, 1963.
+//     nonlinear parameters", J. SIAM 11(2):431-441, 1963 (the refinement,
+//     solved by package identify/lsq).
 //   - R. J. Allemang and D. L. Brown, "A correlation coefficient for modal
 //     vector analysis", Proc. IMAC I, Orlando, 1982, pp. 110-116 (MAC).
 //   - J. S. Bendat and A. G. Piersol, Random Data, 4th ed., Wiley, 2010

@@ -8,6 +8,9 @@ import (
 
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
+
+	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/identify/lsq"
 )
 
 // Defaults and limits of Fit.
@@ -223,11 +226,10 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	if err := pr.linearResidues(theta); err != nil {
 		return nil, err
 	}
-	cost, iters, J, err := pr.refine(theta)
-	if err != nil {
-		return nil, err
-	}
-	res.Iterations = iters
+	// Running out of iterations (lsq.ErrMaxIterations) still leaves the best
+	// fit found; the checks below and the quality warnings judge it.
+	lm, _ := lsq.Minimize(pr.residualsAndJacobian, pr.rows(), theta, lsq.Settings{})
+	res.Iterations = lm.Iterations
 	res.model, res.theta, res.inputs = pr, theta, set.inputs()
 	found := 0
 	for _, l := range pr.poles(theta) {
@@ -239,13 +241,13 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	if found < 2 {
 		return nil, &ModeCountError{Found: found, BandLowHz: lo, BandHighHz: hi, Stage: "refinement"}
 	}
-	cov, chi2, err := pr.covariance(J, cost)
+	cov, chi2, err := pr.covariance(lm.J, lm.Cost)
 	if err != nil {
 		return nil, err
 	}
 	res.ChiSquarePerDOF = chi2
 	res.Modes = pr.modesWithSD(theta, cov)
-	res.MAC = mac(res.Modes[0].Shape, res.Modes[1].Shape)
+	res.MAC = compare.MAC(res.Modes[0].Shape, res.Modes[1].Shape)
 	res.UpperResidual, res.LowerResidual = pr.residualTerms(theta)
 	res.NormalisedResidual = pr.normalisedResidual(theta)
 	res.CoherenceInBand = coherenceInBand(set, b.bins)
@@ -311,37 +313,17 @@ func (pr poleResidue) residueMatrix(theta []float64, r int) [][]complex128 {
 	return m
 }
 
-// heavePitch solves w_k = z - s_k theta for (z, theta) in least squares over
-// the sensors (exact for two): the 2x2 normal equations
-// [[n, -S1], [-S1, S2]] (z, theta) = (sum w, -sum s w), S1 = sum s, S2 = sum s^2,
-// solved in closed form (the matrix is real, so Re and Im parts share it).
-func heavePitch(w []complex128, sM []float64) (z, theta complex128) {
-	var n, s1, s2 float64
-	var sw, ssw complex128
-	for k, s := range sM {
-		n++
-		s1 += s
-		s2 += s * s
-		sw += w[k]
-		ssw += complex(s, 0) * w[k]
-	}
-	det := n*s2 - s1*s1
-	z = (complex(s2, 0)*sw - complex(s1, 0)*ssw) / complex(det, 0)
-	theta = (complex(s1, 0)*sw - complex(n, 0)*ssw) / complex(det, 0)
-	return z, theta
-}
-
 // modeQuantities returns, per mode r, the vector (fn, fd, zeta, pitch per
 // bounce, node, Re shape_k..., Im shape_k...) of the parameters theta, with
-// the shape scaled to z = 1. It is the function the delta method
-// differentiates.
-func (pr poleResidue) modeQuantities(theta []float64, r int) []float64 {
+// the shape scaled to z = 1 and heave and pitch by kin (the sensors'
+// kinematics). It is the function the delta method differentiates.
+func (pr poleResidue) modeQuantities(theta []float64, r int, kin compare.Kinematics) []float64 {
 	l := pr.pole(theta, r)
 	w := cmplx.Abs(l)
 	psi, _ := pr.shape(theta, r)
-	z, th := heavePitch(psi, pr.b.set.OutputPosM)
+	z, th := kin.HeavePitch(psi)
 	ratio := th / z
-	q := []float64{w / (2 * math.Pi), imag(l) / (2 * math.Pi), -real(l) / w, real(ratio), nodeOf(real(ratio), pr.b.set.OutputPosM)}
+	q := []float64{w / (2 * math.Pi), imag(l) / (2 * math.Pi), -real(l) / w, real(ratio), kin.NodeM(real(ratio))}
 	for _, v := range psi {
 		q = append(q, real(v/z))
 	}
@@ -362,37 +344,24 @@ func (pr poleResidue) shape(theta []float64, r int) ([]complex128, float64) {
 	return u, ratio
 }
 
-// nodeOf returns 1/ppb, or NaN when the pitch per bounce is negligible
-// against the sensor span (a mode with no node on any sensible scale).
-func nodeOf(ppb float64, sM []float64) float64 {
-	span := 0.0
-	for _, s := range sM {
-		span = math.Max(span, math.Abs(s))
-	}
-	const negligiblePitch = 1e-9
-	if math.Abs(ppb)*span < negligiblePitch {
-		return nan()
-	}
-	return 1 / ppb
-}
-
 // modesWithSD builds both modes with standard deviations by the delta
 // method, sorted by natural frequency and labelled.
 func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []Mode {
 	ms := make([]Mode, pr.modes)
 	nsens := len(pr.b.set.OutputPosM)
+	kin := compare.NewKinematics(pr.b.set.OutputPosM)
 	for r := range ms {
-		q := pr.modeQuantities(theta, r)
+		q := pr.modeQuantities(theta, r, kin)
 		nq := len(q)
 		G := mat.NewDense(nq, len(theta), nil)
-		fd.Jacobian(G, func(dst, x []float64) { copy(dst, pr.modeQuantities(x, r)) }, theta,
+		fd.Jacobian(G, func(dst, x []float64) { copy(dst, pr.modeQuantities(x, r, kin)) }, theta,
 			&fd.JacobianSettings{Formula: fd.Central})
 		var gc, v mat.Dense
 		gc.Mul(G, cov)
 		v.Mul(&gc, G.T())
 		sd := func(i int) float64 { return math.Sqrt(math.Max(v.At(i, i), 0)) }
 		psi, rank := pr.shape(theta, r)
-		z, th := heavePitch(psi, pr.b.set.OutputPosM)
+		z, th := kin.HeavePitch(psi)
 		m := Mode{
 			Pole: pr.pole(theta, r), NaturalFrequencyHz: q[0], DampedFrequencyHz: q[1], DampingRatio: q[2],
 			PitchPerBounceRadPerM: q[3], NodeM: q[4], HeaveAndPitch: [2]complex128{1, th / z},
@@ -410,38 +379,8 @@ func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []Mode {
 		ms[r] = m
 	}
 	sort.Slice(ms, func(i, j int) bool { return ms[i].NaturalFrequencyHz < ms[j].NaturalFrequencyHz })
-	label(ms)
+	ms[0].Label, ms[1].Label = compare.BodyLabels(ms[0].NodeM, ms[1].NodeM)
 	return ms
-}
-
-// label names the mode whose node lies farther from the CG bounce, the other
-// pitch (a mode without a node counts as infinitely far).
-func label(ms []Mode) {
-	dist := func(m Mode) float64 {
-		if math.IsNaN(m.NodeM) {
-			return math.Inf(1)
-		}
-		return math.Abs(m.NodeM)
-	}
-	b := 0
-	if dist(ms[1]) > dist(ms[0]) {
-		b = 1
-	}
-	ms[b].Label, ms[1-b].Label = "bounce", "pitch"
-}
-
-// mac is the modal assurance criterion |a^H b|^2 / ((a^H a)(b^H b))
-// (Allemang & Brown, IMAC 1982).
-func mac(a, b []complex128) float64 {
-	var ab complex128
-	var aa, bb float64
-	for k := range a {
-		ab += cmplx.Conj(a[k]) * b[k]
-		aa += real(a[k])*real(a[k]) + imag(a[k])*imag(a[k])
-		bb += real(b[k])*real(b[k]) + imag(b[k])*imag(b[k])
-	}
-	x := cmplx.Abs(ab)
-	return x * x / (aa * bb)
 }
 
 func (pr poleResidue) residualTerms(theta []float64) (upper, lower [][]float64) {

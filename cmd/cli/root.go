@@ -45,7 +45,7 @@ var errTargetsFailed = errors.New("a target check failed (see the checks above)"
 func usageArgs(v cobra.PositionalArgs) cobra.PositionalArgs {
 	return func(cmd *cobra.Command, args []string) error {
 		if err := v(cmd, args); err != nil {
-			return usageError{err}
+			return usageError{fmt.Errorf("%w (see %s --help)", err, cmd.CommandPath())}
 		}
 		return nil
 	}

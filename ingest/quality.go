@@ -1,0 +1,207 @@
+package ingest
+
+import (
+	"fmt"
+	"math"
+)
+
+// Data-quality checks, run on the delivered (windowed) samples of each
+// channel as they stream by, in constant memory. They give warnings, never
+// errors: each is a heuristic whose thresholds are the constants below.
+//
+//   - clipping: a run of at least clipRunSamples equal samples at the
+//     channel's extreme (its final maximum or minimum): a saturated sensor or
+//     DAQ input flattens the peaks at full scale.
+//   - dropout: a run of identical values at least dropoutRunS long (and at
+//     least dropoutRunSamples samples), not at an extreme: a frozen or held
+//     channel, a lost packet written as the last value or as zero.
+//   - DC offset: |mean| over dcOffsetRatio times the standard deviation.
+//   - high-pass: see hpDetector.
+const (
+	clipRunSamples    = 4
+	dropoutRunS       = 0.05
+	dropoutRunSamples = 16
+	dcOffsetRatio     = 3.0
+	gravityBandFrac   = 0.1 // |mean| within 10 % of g reads as gravity
+	maxRememberedRuns = 8
+)
+
+// run is a run of equal samples.
+type run struct {
+	val        float64
+	start, len int // start: sample index in the window
+	line       int
+}
+
+// extremeRuns counts the runs at the current extreme value.
+type extremeRuns struct {
+	val           float64
+	runs, samples int
+	longest       int
+	first         run
+	longRuns      int // runs also long enough to count as dropouts
+}
+
+func (e *extremeRuns) reset(v float64) { *e = extremeRuns{val: v} }
+
+func (e *extremeRuns) add(r run, dropRun int) {
+	if e.runs == 0 {
+		e.first = r
+	}
+	e.runs++
+	e.samples += r.len
+	if r.len > e.longest {
+		e.longest = r.len
+	}
+	if r.len >= dropRun {
+		e.longRuns++
+	}
+}
+
+type chanQuality struct {
+	name    string
+	fs      float64
+	dropRun int
+	offsetS float64 // time of the window's first sample from the log's first sample
+
+	cur      run
+	max, min extremeRuns
+	nLong    int   // runs >= dropRun
+	long     []run // the first maxRememberedRuns of them
+	longest  run
+
+	hp *hpDetector
+}
+
+func newChanQuality(name string, fs float64) *chanQuality {
+	q := &chanQuality{name: name, fs: fs}
+	q.dropRun = dropoutRunSamples
+	if r := math.Ceil(dropoutRunS * fs); r > dropoutRunSamples {
+		q.dropRun = int(min(r, 1<<30))
+	}
+	q.cur = run{val: math.NaN()}
+	q.max.reset(math.Inf(-1))
+	q.min.reset(math.Inf(1))
+	q.hp = newHPDetector(fs)
+	return q
+}
+
+// add takes a block: its samples d, their file lines, the index of d[0] in
+// the window, and the window's offset from the log's first sample.
+func (q *chanQuality) add(d []float64, lines []int, start int, firstT, outT0, fs float64) {
+	q.offsetS = outT0 - firstT
+	cur, curLen, curStart := q.cur.val, q.cur.len, q.cur.start
+	maxV, minV := q.max.val, q.min.val
+	for j, x := range d {
+		if x == cur {
+			curLen++
+			continue
+		}
+		if curLen >= clipRunSamples {
+			q.cur = run{val: cur, len: curLen, start: curStart, line: q.cur.line}
+			q.endRun()
+		}
+		cur, curLen, curStart = x, 1, start+j
+		q.cur.line = lines[j]
+		if x > maxV {
+			q.max.reset(x)
+			maxV = x
+		}
+		if x < minV {
+			q.min.reset(x)
+			minV = x
+		}
+	}
+	q.cur.val, q.cur.len, q.cur.start = cur, curLen, curStart
+	if q.hp != nil {
+		q.hp.add(d)
+	}
+}
+
+func (q *chanQuality) endRun() {
+	r := q.cur
+	if r.len >= clipRunSamples {
+		switch r.val {
+		case q.max.val:
+			q.max.add(r, q.dropRun)
+		case q.min.val:
+			q.min.add(r, q.dropRun)
+		}
+	}
+	if r.len >= q.dropRun {
+		q.nLong++
+		if len(q.long) < maxRememberedRuns {
+			q.long = append(q.long, r)
+		}
+		if r.len > q.longest.len && r.val != q.max.val && r.val != q.min.val {
+			q.longest = r
+		}
+	}
+}
+
+func (q *chanQuality) timeOf(sample int) *float64 {
+	t := q.offsetS + float64(sample)/q.fs
+	return &t
+}
+
+func (q *chanQuality) finish(st runningStats) []Warning {
+	q.endRun()
+	q.cur = run{val: math.NaN()}
+	var w []Warning
+	if st.min == st.max {
+		return nil // an error elsewhere
+	}
+	for _, e := range []*extremeRuns{&q.max, &q.min} {
+		if e.runs == 0 {
+			continue
+		}
+		which := "maximum"
+		if e == &q.min {
+			which = "minimum"
+		}
+		w = append(w, Warning{Code: WarnClipping, Channel: q.name, Line: e.first.line, TimeS: q.timeOf(e.first.start),
+			Message: fmt.Sprintf("%d run(s) of %d or more equal samples (%d in all, the longest %d) at the channel's %s %.6g m/s^2: the sensor or the DAQ input may be saturated; check its range",
+				e.runs, clipRunSamples, e.samples, e.longest, which, e.val)})
+	}
+	drop := q.nLong - q.max.longRuns - q.min.longRuns
+	if drop > 0 {
+		var first *run
+		for i := range q.long {
+			r := &q.long[i]
+			if r.val != q.max.val && r.val != q.min.val {
+				first = r
+				break
+			}
+		}
+		msg := fmt.Sprintf("%d run(s) of %d or more identical values (%s or more)", drop, q.dropRun, fmtS(float64(q.dropRun)/q.fs))
+		if q.longest.len > 0 {
+			msg += fmt.Sprintf(", the longest %d samples (%s) at %.6g m/s^2", q.longest.len, fmtS(float64(q.longest.len)/q.fs), q.longest.val)
+		}
+		msg += ": a dropout, a frozen channel or a held value? Cut the window around it"
+		wr := Warning{Code: WarnDropout, Channel: q.name, Message: msg}
+		if first != nil {
+			wr.Line = first.line
+			wr.TimeS = q.timeOf(first.start)
+		}
+		w = append(w, wr)
+	}
+	sd := st.std()
+	if math.Abs(st.mean) > dcOffsetRatio*sd {
+		msg := fmt.Sprintf("the mean %.4g m/s^2 is %.1f times the signal's standard deviation %.4g m/s^2", st.mean, math.Abs(st.mean)/sd, sd)
+		if math.Abs(math.Abs(st.mean)-standardGravity) < gravityBandFrac*standardGravity {
+			msg += " (about 1 g: a DC-coupled sensor reading gravity?); the spectral stage removes the mean, but check the channel's sign and unit"
+		} else {
+			msg += " (a sensor offset, or a zero not set?); the mean is removed before the spectra, but a drifting offset leaks into the lowest frequencies"
+		}
+		w = append(w, Warning{Code: WarnDCOffset, Channel: q.name, Message: msg})
+	}
+	if q.hp != nil {
+		gravity := math.Abs(math.Abs(st.mean)-standardGravity) < gravityBandFrac*standardGravity && sd < standardGravity
+		if res, ok := q.hp.result(); ok && res.highPass && !gravity {
+			w = append(w, Warning{Code: WarnHighPass, Channel: q.name, Message: fmt.Sprintf(
+				"the spectrum falls away below 1 Hz as a high-pass (AC-coupled, IEPE/ICP) accelerometer's does: the 0.1-0.2 Hz level is %.0f dB under the 0.25-0.45 Hz level (power rising as about f^%.1f) and the 0.1-0.25 Hz level %.0f dB under the 0.8-2 Hz level. Such a sensor shifts the phase at the body modes and biases damping and mode shapes: use DC-response accelerometers, or ignore this if the drive had no content below 0.5 Hz",
+				-10*math.Log10(res.lowMid), res.slope, -10*math.Log10(res.dropRatio))})
+		}
+	}
+	return w
+}

@@ -1,0 +1,239 @@
+package ingest
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// logOf writes channel x sampled at fs as a log "time [s],x [m/s^2]" in the
+// writer's format.
+func logOf(x []float64, fs float64) string {
+	var b strings.Builder
+	b.WriteString("time [s],x [m/s^2]\n")
+	buf := make([]byte, 0, 64)
+	for i, v := range x {
+		buf = strconv.AppendFloat(buf[:0], float64(i)/fs, 'g', 10, 64)
+		buf = append(buf, ',')
+		buf = strconv.AppendFloat(buf, v, 'g', 10, 64)
+		buf = append(buf, '\n')
+		b.Write(buf)
+	}
+	return b.String()
+}
+
+func warningsOf(t *testing.T, x []float64, fs float64) map[WarningCode]Warning {
+	t.Helper()
+	l := mustRead(t, logOf(x, fs), Options{})
+	m := map[WarningCode]Warning{}
+	for _, w := range l.Summary.Warnings {
+		m[w.Code] = w
+	}
+	return m
+}
+
+func noise(n int, seed uint64, sd float64) []float64 {
+	rng := rand.New(rand.NewPCG(seed, 11))
+	x := make([]float64, n)
+	for i := range x {
+		x[i] = sd * rng.NormFloat64()
+	}
+	return x
+}
+
+func TestCleanSignalHasNoWarnings(t *testing.T) {
+	for seed := range uint64(3) {
+		if w := warningsOf(t, noise(20000, seed, 0.5), 200); len(w) != 0 {
+			t.Errorf("seed %d: %v", seed, w)
+		}
+	}
+}
+
+func TestClipping(t *testing.T) {
+	const fs = 200.0
+	x := noise(4000, 1, 0.05)
+	for i := range x {
+		x[i] += 2 * math.Sin(2*math.Pi*1.3*float64(i)/fs)
+		x[i] = math.Max(-1.5, math.Min(1.5, x[i])) // saturates at +-1.5
+	}
+	l := mustRead(t, logOf(x, fs), Options{})
+	var clips []Warning
+	for _, w := range l.Summary.Warnings {
+		if w.Code == WarnClipping {
+			clips = append(clips, w)
+		}
+		if w.Code == WarnDropout {
+			t.Errorf("clipping also reported as a dropout: %v", w)
+		}
+	}
+	if len(clips) != 2 || !strings.Contains(clips[1].Message, "minimum -1.5") {
+		t.Fatalf("clipping warnings %v, want one at the maximum, one at the minimum", clips)
+	}
+	c := clips[0]
+	// the first run of clipRunSamples or more at the maximum
+	first := 0
+	for !(x[first] == 1.5 && x[first+1] == 1.5 && x[first+2] == 1.5 && x[first+3] == 1.5) {
+		first++
+	}
+	if c.Channel != "x" || c.Line != first+2 || c.TimeS == nil || math.Abs(*c.TimeS-float64(first)/fs) > 1e-9 {
+		t.Errorf("clipping warning %v, first clipped sample %d", c, first)
+	}
+	if !strings.Contains(c.Message, "maximum 1.5") {
+		t.Errorf("message %q", c.Message)
+	}
+}
+
+func TestDropout(t *testing.T) {
+	const fs = 500.0
+	x := noise(5000, 2, 1)
+	for i := 2000; i < 2100; i++ { // 0.2 s held
+		x[i] = x[1999]
+	}
+	w := warningsOf(t, x, fs)
+	d, ok := w[WarnDropout]
+	if !ok {
+		t.Fatalf("no dropout warning: %v", w)
+	}
+	if d.Line != 1999+2 || !strings.Contains(d.Message, "the longest 101 samples") {
+		t.Errorf("dropout warning %v", d)
+	}
+	// 10 equal samples at 500 Hz (20 ms) are not a dropout
+	x = noise(5000, 2, 1)
+	for i := 2000; i < 2010; i++ {
+		x[i] = x[1999]
+	}
+	if w := warningsOf(t, x, fs); len(w) != 0 {
+		t.Errorf("short run: %v", w)
+	}
+}
+
+func TestDCOffset(t *testing.T) {
+	x := noise(4000, 3, 0.2)
+	for i := range x {
+		x[i] += 1.0
+	}
+	w := warningsOf(t, x, 200)
+	if d, ok := w[WarnDCOffset]; !ok || strings.Contains(d.Message, "gravity") {
+		t.Errorf("offset 1 m/s^2 on 0.2: %v", w)
+	}
+	for i := range x {
+		x[i] += standardGravity - 1
+	}
+	w = warningsOf(t, x, 200)
+	if d, ok := w[WarnDCOffset]; !ok || !strings.Contains(d.Message, "gravity") {
+		t.Errorf("offset 1 g: %v", w)
+	}
+	x = noise(4000, 3, 0.2)
+	for i := range x {
+		x[i] += 0.3 // 1.5 sd: not flagged
+	}
+	if w := warningsOf(t, x, 200); len(w) != 0 {
+		t.Errorf("small offset: %v", w)
+	}
+}
+
+// highPass1 filters x through a first-order high-pass with corner fc (Hz),
+// the bilinear transform of s/(s + 2 pi fc).
+func highPass1(x []float64, fs, fc float64) []float64 {
+	k := 2 * fs
+	wc := 2 * math.Pi * fc
+	b := k / (k + wc)
+	a := (k - wc) / (k + wc)
+	y := make([]float64, len(x))
+	for i := 1; i < len(x); i++ {
+		y[i] = b*(x[i]-x[i-1]) + a*y[i-1]
+	}
+	return y
+}
+
+// bodyResponse filters x through a second-order resonance wn^2/(s^2 + 2 zeta
+// wn s + wn^2) (a body on its suspension: transmissibility 1 below the mode),
+// bilinear transform without prewarping.
+func bodyResponse(x []float64, fs, fn, zeta float64) []float64 {
+	wn := 2 * math.Pi * fn
+	k := 2 * fs
+	a0 := k*k + 2*zeta*wn*k + wn*wn
+	b0 := wn * wn / a0
+	a1 := (2*wn*wn - 2*k*k) / a0
+	a2 := (k*k - 2*zeta*wn*k + wn*wn) / a0
+	y := make([]float64, len(x))
+	var x1, x2, y1, y2 float64
+	for i, v := range x {
+		o := b0*(v+2*x1+x2) - a1*y1 - a2*y2
+		x2, x1 = x1, v
+		y2, y1 = y1, o
+		y[i] = o
+	}
+	return y
+}
+
+// The high-pass test on synthetic signals, each with five seeds: white
+// noise and a body's response to it (1.2 Hz, zeta 0.3), with and without a
+// first-order 0.5 Hz high-pass, 300 s at 100 Hz.
+func TestHighPassDetector(t *testing.T) {
+	const fs, n = 100.0, 30000
+	for seed := range uint64(5) {
+		white := noise(n, 10+seed, 1)
+		body := bodyResponse(white, fs, 1.2, 0.3)
+		for _, c := range []struct {
+			name string
+			x    []float64
+			want bool
+		}{
+			{"white", white, false},
+			{"white, 0.5 Hz high-pass", highPass1(white, fs, 0.5), true},
+			{"body", body, false},
+			{"body, 0.5 Hz high-pass", highPass1(body, fs, 0.5), true},
+			{"body, 1 Hz high-pass", highPass1(body, fs, 1), true},
+		} {
+			d := newHPDetector(fs)
+			d.add(c.x)
+			res, ok := d.result()
+			if !ok || res.highPass != c.want {
+				t.Errorf("seed %d, %s: high-pass %v (low/mid %.2f, low/ref %.3f), want %v", seed, c.name, res.highPass, res.lowMid, res.dropRatio, c.want)
+			}
+			if seed == 0 {
+				t.Logf("%-26s low/mid %.2f  low/ref %.3f", c.name, res.lowMid, res.dropRatio)
+			}
+		}
+	}
+	// through the reader, with the warning; and not for a DC sensor's gravity
+	x := highPass1(bodyResponse(noise(n, 3, 1), fs, 1.2, 0.3), fs, 0.5)
+	w := warningsOf(t, x, fs)
+	if hp, ok := w[WarnHighPass]; !ok || hp.Channel != "x" || !strings.Contains(hp.Message, "IEPE") {
+		t.Errorf("no high-pass warning: %v", w)
+	}
+	for i := range x {
+		x[i] += standardGravity
+	}
+	if _, ok := warningsOf(t, x, fs)[WarnHighPass]; ok {
+		t.Error("high-pass warning on a channel reading gravity")
+	}
+	// too short a record is not tested
+	d := newHPDetector(fs)
+	d.add(highPass1(noise(6000, 1, 1), fs, 0.5))
+	if _, ok := d.result(); ok {
+		t.Error("60 s record tested")
+	}
+	// at 1 kHz the decimation keeps it working
+	const fs2 = 1000.0
+	d = newHPDetector(fs2)
+	d.add(highPass1(noise(200000, 4, 1), fs2, 0.5))
+	if res, ok := d.result(); !ok || !res.highPass {
+		t.Errorf("1 kHz: %+v %v", res, ok)
+	}
+	if newHPDetector(4) != nil {
+		t.Error("a 4 Hz log cannot show 2 Hz")
+	}
+}
+
+func TestWarningsJSONShape(t *testing.T) {
+	ts := 0.0
+	w := Warning{Code: WarnDropout, Channel: "a", Line: 3, TimeS: &ts, Message: "m"}
+	if got := fmt.Sprint(w); !strings.Contains(got, "t = 0.000 s") {
+		t.Errorf("%q", got)
+	}
+}

@@ -331,3 +331,14 @@ func (s *FRFStage) Result() (*FRFResult, error) {
 	}
 	return r, nil
 }
+
+// minRigCycles is how many periods of the band's lower edge a rig record
+// must span: enough for eight averages of segments that resolve the lower
+// edge with Hann (common practice asks for more; the resolution choice warns
+// when the record is short for the damping).
+const minRigCycles = 30
+
+// MinRigRecordS is the shortest rig record that FRFs over a band starting at
+// bandLowHz can come from: minRigCycles periods of the lower edge (60 s at
+// 0.5 Hz).
+func MinRigRecordS(bandLowHz float64) float64 { return minRigCycles / bandLowHz }

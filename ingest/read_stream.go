@@ -459,7 +459,7 @@ func (s *streamer) finish() (Summary, error) {
 	}
 	if s.opt.MinDurationS > 0 && dur < s.opt.MinDurationS*(1-1e-9) {
 		return Summary{}, r.errLine(0, ErrTooShort,
-			"the record (lines %d to %d) is %s long; the analysis band needs at least %g s: log longer, or widen the window",
+			"the record (lines %d to %d) is %s long; the analysis band needs at least %g s: record a longer log, or widen the --start/--end window",
 			s.firstOutLine, s.lastOutLine, fmtS(dur), s.opt.MinDurationS)
 	}
 	sum := Summary{Samples: s.nOut, Rows: s.rows, SampleRateHz: fs, T0S: s.outT0, DurationS: dur, LogSpanS: span,

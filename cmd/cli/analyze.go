@@ -127,7 +127,7 @@ func runAnalyze(logPath string, af *analyzeFlags, out io.Writer) (*analysis, boo
 		sum, err = analyzeDrop(r, done, af, a)
 	}
 	if err != nil {
-		return nil, false, fmt.Errorf("%s: %w", logPath, err)
+		return nil, false, withPath(logPath, err)
 	}
 	info := r.Info()
 	res.Log = &compare.LogRef{Path: logPath, SHA256: sum.SHA256, Samples: sum.Samples,

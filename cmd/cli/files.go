@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 )
 
 // writeAtomic writes a file through a temporary file in the same folder and
@@ -63,4 +64,13 @@ func sameFile(a, b string) bool {
 	sa, err1 := os.Stat(a)
 	sb, err2 := os.Stat(b)
 	return err1 == nil && err2 == nil && os.SameFile(sa, sb)
+}
+
+// withPath prefixes an error with the file it concerns, unless its message
+// names the file already.
+func withPath(path string, err error) error {
+	if strings.HasPrefix(err.Error(), path) {
+		return err
+	}
+	return fmt.Errorf("%s: %w", path, err)
 }

@@ -95,7 +95,7 @@ func channelsOf(setup *ingest.Setup) []string {
 // openLog opens a log for the setup's channels with the shared options and a
 // progress bar on a terminal. The caller closes the reader and calls done.
 func (f *logFlags) openLog(path string, setup *ingest.Setup) (*ingest.Reader, func(), error) {
-	_, hi := f.band(setup)
+	lo, hi := f.band(setup)
 	opt := ingest.Options{
 		Channels:     channelsOf(setup),
 		SampleRateHz: setup.Analysis.SampleRateHz,
@@ -103,6 +103,9 @@ func (f *logFlags) openLog(path string, setup *ingest.Setup) (*ingest.Reader, fu
 		EndS:         f.endS,
 		Resample:     f.resample,
 		BandHighHz:   hi,
+	}
+	if len(setup.Inputs) > 0 {
+		opt.MinDurationS = identify.MinRigRecordS(lo)
 	}
 	done := func() {}
 	if st, err := os.Stat(path); err == nil {

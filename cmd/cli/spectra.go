@@ -63,7 +63,7 @@ resolution bias) are printed.`,
 			}
 			res, err := stage.Result()
 			if err != nil {
-				return fmt.Errorf("%s: %w", logPath, err)
+				return withPath(logPath, err)
 			}
 			if err := writeAtomic(csvPath, func(w io.Writer) error {
 				if res.FRF != nil {

@@ -182,17 +182,7 @@ func closedFormSigma(body Vehicle, y, sig []float64, chosen Rates, damped bool) 
 			}
 			return
 		}
-		best, bestD := 0, math.Inf(1)
-		for i, c := range cands {
-			d := 0.0
-			for k, v := range rateVector(c, damped) {
-				d += sq((v - ref[k]) / ref[k])
-			}
-			if d < bestD {
-				best, bestD = i, d
-			}
-		}
-		copy(dst, rateVector(cands[best], damped))
+		copy(dst, rateVector(cands[nearestRoot(cands, ref, damped)], damped))
 	}
 	jac := mat.NewDense(n, len(y), nil)
 	fd.Jacobian(jac, f, y, &fd.JacobianSettings{Formula: fd.Central, Step: fdStep})
@@ -407,4 +397,20 @@ func (u *Update) JSON() *Updated {
 		out.Uncertainty = uu
 	}
 	return out
+}
+
+// nearestRoot returns the index of the candidate whose rate vector lies
+// nearest ref in relative terms.
+func nearestRoot(cands []Rates, ref []float64, damped bool) int {
+	best, bestD := 0, math.Inf(1)
+	for i, c := range cands {
+		d := 0.0
+		for k, v := range rateVector(c, damped) {
+			d += sq((v - ref[k]) / ref[k])
+		}
+		if d < bestD {
+			best, bestD = i, d
+		}
+	}
+	return best
 }

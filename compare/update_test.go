@@ -1,7 +1,6 @@
 package compare
 
 import (
-	"math"
 	"math/rand/v2"
 	"testing"
 
@@ -44,17 +43,7 @@ func mcSpread(t *testing.T, body Vehicle, ms []MeasuredMode, damped bool, truth 
 		if err != nil {
 			t.Fatalf("sample %d: %v", s, err)
 		}
-		best, bestD := 0, math.Inf(1)
-		ref := rateVector(truth, damped)
-		for i, c := range cands {
-			d := 0.0
-			for k, v := range rateVector(c, damped) {
-				d += sq((v - ref[k]) / ref[k])
-			}
-			if d < bestD {
-				best, bestD = i, d
-			}
-		}
+		best := nearestRoot(cands, rateVector(truth, damped), damped)
 		for k, v := range rateVector(cands[best], damped) {
 			cols[k] = append(cols[k], v)
 		}

@@ -23,9 +23,23 @@ var (
 		{Channel: "pan_rl", Axle: "rear"}, {Channel: "pan_rr", Axle: "rear"}}
 )
 
-// streamLog feeds a simulated log to a stage in blocks, as ingest.Reader.Stream does.
-func streamLog(t *testing.T, s *FRFStage, log *simulate.Log) {
+// fourPostFRF simulates the four-post car, lets edit change the log, and
+// returns the stage's result, fed in blocks as ingest.Reader.Stream feeds it.
+func fourPostFRF(t *testing.T, o simulate.Options, edit func(*simulate.Log)) *FRFResult {
 	t.Helper()
+	log, err := simulate.Rig(fourPostCar, fourPostSensors, fourPostInputs, o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	edit(log)
+	var names []string
+	for _, c := range log.Columns {
+		names = append(names, c.Name)
+	}
+	stage, err := NewFRFStage(names, fourPostSensors, fourPostInputs, FRFOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
 	const block = 4096
 	n := len(log.Columns[0].Data)
 	for start := 0; start < n; start += block {
@@ -34,36 +48,21 @@ func streamLog(t *testing.T, s *FRFStage, log *simulate.Log) {
 		for _, c := range log.Columns {
 			b.Data = append(b.Data, c.Data[start:end])
 		}
-		if err := s.Consume(b); err != nil {
+		if err := stage.Consume(b); err != nil {
 			t.Fatal(err)
 		}
 	}
-}
-
-func channelNames(log *simulate.Log) []string {
-	var names []string
-	for _, c := range log.Columns {
-		names = append(names, c.Name)
+	frf, err := stage.Result()
+	if err != nil {
+		t.Fatal(err)
 	}
-	return names
+	return frf
 }
 
 func TestFourPostRigCombinesPansPerAxle(t *testing.T) {
 	o := simulate.Defaults("rig")
 	o.DurationS, o.NoiseFraction = 400, 0.05
-	log, err := simulate.Rig(fourPostCar, fourPostSensors, fourPostInputs, o)
-	if err != nil {
-		t.Fatal(err)
-	}
-	stage, err := NewFRFStage(channelNames(log), fourPostSensors, fourPostInputs, FRFOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	streamLog(t, stage, log)
-	frf, err := stage.Result()
-	if err != nil {
-		t.Fatal(err)
-	}
+	frf := fourPostFRF(t, o, func(*simulate.Log) {})
 	for _, w := range frf.Warnings {
 		if strings.Contains(w, "not driven together") {
 			t.Errorf("pans driven together were flagged: %s", w)
@@ -94,23 +93,12 @@ func TestFourPostRigWarnsWhenPansDiffer(t *testing.T) {
 	// the same level) is not a two-input bounce-pitch test: warn.
 	o := simulate.Defaults("rig")
 	o.DurationS = 200
-	log, err := simulate.Rig(fourPostCar, fourPostSensors, fourPostInputs, o)
-	if err != nil {
-		t.Fatal(err)
-	}
 	rng := rand.New(rand.NewPCG(3, 1))
-	for i := range log.Columns[1].Data {
-		log.Columns[1].Data[i] = o.DriveRMSMPerS2 * rng.NormFloat64()
-	}
-	stage, err := NewFRFStage(channelNames(log), fourPostSensors, fourPostInputs, FRFOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	streamLog(t, stage, log)
-	frf, err := stage.Result()
-	if err != nil {
-		t.Fatal(err)
-	}
+	frf := fourPostFRF(t, o, func(log *simulate.Log) {
+		for i := range log.Columns[1].Data { // pan_fr
+			log.Columns[1].Data[i] = o.DriveRMSMPerS2 * rng.NormFloat64()
+		}
+	})
 	found := false
 	for _, w := range frf.Warnings {
 		found = found || (strings.Contains(w, "pan_fl and pan_fr were not driven together"))

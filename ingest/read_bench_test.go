@@ -151,35 +151,7 @@ func BenchmarkParseBaselineEncodingCSV(b *testing.B) {
 	runtime.ReadMemStats(&m0)
 	b.ResetTimer()
 	for range b.N {
-		cr := csv.NewReader(bytes.NewReader(data))
-		cr.ReuseRecord = true
-		cr.Comment = '#'
-		cr.FieldsPerRecord = 5
-		if _, err := cr.Read(); err != nil { // header
-			b.Fatal(err)
-		}
-		n := 0
-		var sink float64
-		for {
-			rec, err := cr.Read()
-			if err == io.EOF {
-				break
-			}
-			if err != nil {
-				b.Fatal(err)
-			}
-			for _, cell := range rec {
-				v, err := strconv.ParseFloat(cell, 64)
-				if err != nil {
-					b.Fatal(err)
-				}
-				sink += v
-			}
-			n++
-		}
-		if n != rows {
-			b.Fatalf("rows %d, want %d", n, rows)
-		}
+		parseBaseline(b, data, rows)
 	}
 	b.StopTimer()
 	runtime.ReadMemStats(&m1)

@@ -2,6 +2,7 @@ package identify
 
 import (
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
 	"strings"
 	"testing"
@@ -25,7 +26,7 @@ var (
 
 // fourPostFRF simulates the four-post car, lets edit change the log, and
 // returns the stage's result, fed in blocks as ingest.Reader.Stream feeds it.
-func fourPostFRF(t *testing.T, o simulate.Options, edit func(*simulate.Log)) *FRFResult {
+func fourPostFRF(t *testing.T, o simulate.Options, fo FRFOptions, edit func(*simulate.Log)) *FRFResult {
 	t.Helper()
 	log, err := simulate.Rig(fourPostCar, fourPostSensors, fourPostInputs, o)
 	if err != nil {
@@ -36,7 +37,7 @@ func fourPostFRF(t *testing.T, o simulate.Options, edit func(*simulate.Log)) *FR
 	for _, c := range log.Columns {
 		names = append(names, c.Name)
 	}
-	stage, err := NewFRFStage(names, fourPostSensors, fourPostInputs, FRFOptions{})
+	stage, err := NewFRFStage(names, fourPostSensors, fourPostInputs, fo)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -62,7 +63,7 @@ func fourPostFRF(t *testing.T, o simulate.Options, edit func(*simulate.Log)) *FR
 func TestFourPostRigCombinesPansPerAxle(t *testing.T) {
 	o := simulate.Defaults("rig")
 	o.DurationS, o.NoiseFraction = 400, 0.05
-	frf := fourPostFRF(t, o, func(*simulate.Log) {})
+	frf := fourPostFRF(t, o, FRFOptions{}, func(*simulate.Log) {})
 	for _, w := range frf.Warnings {
 		if strings.Contains(w, "not driven together") {
 			t.Errorf("pans driven together were flagged: %s", w)
@@ -94,7 +95,7 @@ func TestFourPostRigWarnsWhenPansDiffer(t *testing.T) {
 	o := simulate.Defaults("rig")
 	o.DurationS = 200
 	rng := rand.New(rand.NewPCG(3, 1))
-	frf := fourPostFRF(t, o, func(log *simulate.Log) {
+	frf := fourPostFRF(t, o, FRFOptions{}, func(log *simulate.Log) {
 		for i := range log.Columns[1].Data { // pan_fr
 			log.Columns[1].Data[i] = o.DriveRMSMPerS2 * rng.NormFloat64()
 		}
@@ -105,5 +106,49 @@ func TestFourPostRigWarnsWhenPansDiffer(t *testing.T) {
 	}
 	if !found {
 		t.Errorf("no warning about the front pans in %q", frf.Warnings)
+	}
+}
+
+func TestStageH1WithinItsErrorBands(t *testing.T) {
+	// Issue 4: the two-input H1 of a simulated rig log (our simulate, exact)
+	// recovers the model's transmissibility within its own error bands (Bendat
+	// & Piersol, Random Data, 4th ed., 2010: |H| and phase random errors from
+	// coherence and averages) at 95 % of the band's frequencies. Bands at 99 %
+	// (z99 standard deviations), as identify/spectral's own test uses them.
+	// The bands are random errors only: the segment is set long enough (1024
+	// samples at 20 Hz, 51 s) for the leakage bias at the peaks to fall below
+	// them on this 10-minute log; at the automatic choice (512) the bias at
+	// the resonance peaks reaches the 99 % band at a few bins (94.3 % inside).
+	const (
+		z99        = 2.576
+		minInside  = 0.95
+		loHz, hiHz = 0.6, 4
+		segment    = 1024
+	)
+	o := simulate.Defaults("rig")
+	o.DurationS, o.NoiseFraction, o.Units = 600, 0.05, simulate.UnitsMixed
+	frf := fourPostFRF(t, o, FRFOptions{SegmentLen: segment}, func(*simulate.Log) {})
+	for oi, s := range fourPostSensors {
+		for ii := range frf.FRF.Inputs {
+			p := frf.FRF.Pairs[oi][ii]
+			var in, n int
+			for k, f := range frf.FRF.FreqsHz {
+				if f < loHz || f > hiHz {
+					continue
+				}
+				hf, hr := fourPostCar.Transmissibility(f, s.XM)
+				want := []complex128{hf, hr}[ii]
+				n++
+				magOK := math.Abs(cmplx.Abs(p.H[k])-cmplx.Abs(want)) <= z99*p.MagRelErr[k]*cmplx.Abs(p.H[k])
+				phOK := math.Abs(cmplx.Phase(p.H[k]/want)) <= z99*p.PhaseErrRad[k]
+				if magOK && phOK {
+					in++
+				}
+			}
+			if frac := float64(in) / float64(n); frac < minInside {
+				t.Errorf("%s/%s: %.1f %% of %d bins within the 99 %% bands, want %.0f %%", s.Channel, frf.FRF.Inputs[ii],
+					100*frac, n, 100*minInside)
+			}
+		}
 	}
 }

@@ -227,12 +227,12 @@ func Compare(measured []MeasuredMode, design Vehicle, sensorsXM []float64) ([]Co
 			MeasuredHz:                     mm.NaturalFrequencyHz,
 			PredictedHz:                    pm.NaturalFrequencyHz,
 			DifferencePct:                  100 * (mm.NaturalFrequencyHz - pm.NaturalFrequencyHz) / pm.NaturalFrequencyHz,
-			MeasuredDampingRatio:           finite(mm.DampingRatio),
+			MeasuredDampingRatio:           Finite(mm.DampingRatio),
 			PredictedDampingRatio:          pm.DampingRatio,
-			MeasuredPitchPerBounceRadPerM:  finite(mm.PitchPerBounceRadPerM),
-			PredictedPitchPerBounceRadPerM: finite(pm.PitchPerBounceRadPerM),
-			MeasuredNodeM:                  finite(1 / mm.PitchPerBounceRadPerM),
-			PredictedNodeM:                 finite(pm.NodeM),
+			MeasuredPitchPerBounceRadPerM:  Finite(mm.PitchPerBounceRadPerM),
+			PredictedPitchPerBounceRadPerM: Finite(pm.PitchPerBounceRadPerM),
+			MeasuredNodeM:                  Finite(1 / mm.PitchPerBounceRadPerM),
+			PredictedNodeM:                 Finite(pm.NodeM),
 		}
 		if !math.IsNaN(macs[i][i]) {
 			c.ShapeMeasured = true

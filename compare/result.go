@@ -203,8 +203,8 @@ type Check struct {
 	Detail string `json:"detail"`
 }
 
-// finite returns a pointer to x, or nil for NaN and infinities (JSON null).
-func finite(x float64) *float64 {
+// Finite returns a pointer to x, or nil for NaN and infinities (JSON null).
+func Finite(x float64) *float64 {
 	if math.IsNaN(x) || math.IsInf(x, 0) {
 		return nil
 	}
@@ -219,8 +219,8 @@ func (m Mode) JSON(method string) ModeJSON {
 		NaturalFrequencyRadPerS: 2 * math.Pi * m.NaturalFrequencyHz,
 		DampedFrequencyHz:       m.DampedFrequencyHz,
 		DampingRatio:            m.DampingRatio,
-		PitchPerBounceRadPerM:   finite(m.PitchPerBounceRadPerM),
-		NodeM:                   finite(m.NodeM),
+		PitchPerBounceRadPerM:   Finite(m.PitchPerBounceRadPerM),
+		NodeM:                   Finite(m.NodeM),
 		Method:                  method,
 	}
 }

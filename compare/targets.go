@@ -51,10 +51,7 @@ func Assess(measured []MeasuredMode, setup *ingest.Setup) (*Assessment, error) {
 	if err != nil {
 		return nil, err
 	}
-	sensors := make([]float64, len(setup.Sensors))
-	for i, s := range setup.Sensors {
-		sensors[i] = s.XM
-	}
+	sensors := ingest.SensorPositionsM(setup.Sensors)
 	a := &Assessment{RideRates: RideRates(setup.Vehicle)}
 	a.Comparison, a.Warnings, err = Compare(measured, design, sensors)
 	if err != nil {
@@ -119,7 +116,7 @@ func (a *Assessment) equivalentSprings(spec ingest.VehicleSpec) {
 			a.Warnings = append(a.Warnings, err.Error())
 			continue
 		}
-		*ax.dst = finite(ks)
+		*ax.dst = Finite(ks)
 	}
 }
 

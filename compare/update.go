@@ -383,16 +383,16 @@ func (u *Update) JSON() *Updated {
 	}
 	freedJ := u.PitchInertiaFreed
 	if freedJ {
-		out.PitchInertiaKgm2 = finite(u.Vehicle.PitchInertiaKgm2)
+		out.PitchInertiaKgm2 = Finite(u.Vehicle.PitchInertiaKgm2)
 	}
 	if u.HasSigma {
 		uu := &UpdatedUncertainty{FrontRateNPerM: u.Sigma.FrontRateNPerM, RearRateNPerM: u.Sigma.RearRateNPerM,
 			NominalWeights: u.NominalWeights}
 		if u.Damped {
-			uu.FrontDampingNsPerM, uu.RearDampingNsPerM = finite(u.Sigma.FrontDampingNsPerM), finite(u.Sigma.RearDampingNsPerM)
+			uu.FrontDampingNsPerM, uu.RearDampingNsPerM = Finite(u.Sigma.FrontDampingNsPerM), Finite(u.Sigma.RearDampingNsPerM)
 		}
 		if freedJ {
-			uu.PitchInertiaKgm2 = finite(u.SigmaPitchInertiaKgm2)
+			uu.PitchInertiaKgm2 = Finite(u.SigmaPitchInertiaKgm2)
 		}
 		out.Uncertainty = uu
 	}

@@ -309,7 +309,7 @@ func (s *FRFStage) Result() (*FRFResult, error) {
 		if err != nil {
 			return nil, err
 		}
-		r.Reasons = append(r.Reasons, fmt.Sprintf("segment length %d samples (%g Hz resolution) as given", s.opt.SegmentLen, r.Spectra.ResolutionHz()))
+		r.Reasons = append(r.Reasons, fmt.Sprintf("segment length %d samples (%.4g Hz resolution) as given", s.opt.SegmentLen, r.Spectra.ResolutionHz()))
 	}
 	for _, p := range s.pairs {
 		axle := [2]string{"front", "rear"}[p.axle]

@@ -15,11 +15,7 @@ func FitRig(frf *FRFResult, sensors []ingest.Sensor, opt modal.Options) (*modal.
 	if frf.FRF == nil {
 		return nil, nil, errors.New("identify: no FRFs: a rig test needs [[input]] channels")
 	}
-	pos := make([]float64, len(sensors))
-	for i, s := range sensors {
-		pos[i] = s.XM
-	}
-	set, err := modal.FromSpectral(frf.FRF, frf.Spectra, pos)
+	set, err := modal.FromSpectral(frf.FRF, frf.Spectra, ingest.SensorPositionsM(sensors))
 	if err != nil {
 		return nil, nil, err
 	}

@@ -516,3 +516,12 @@ func KnownWindow(name string) bool {
 	}
 	return false
 }
+
+// SensorPositionsM returns the sensors' x_m in their order.
+func SensorPositionsM(sensors []Sensor) []float64 {
+	pos := make([]float64, len(sensors))
+	for i, se := range sensors {
+		pos[i] = se.XM
+	}
+	return pos
+}

@@ -206,7 +206,7 @@ func analyzeRig(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (i
 	}
 	res.Analysis.Choices = append(res.Analysis.Choices, frf.Reasons...)
 	res.Warnings = append(res.Warnings, frf.Warnings...)
-	pos := sensorPositions(setup)
+	pos := ingest.SensorPositionsM(setup.Sensors)
 	set, fit, err := identify.FitRig(frf, setup.Sensors, modal.Options{MaxOrder: af.maxOrder})
 	if err != nil {
 		return sum, err
@@ -218,7 +218,7 @@ func analyzeRig(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (i
 	for _, q := range fit.Quick {
 		res.Analysis.QuickEstimate = append(res.Analysis.QuickEstimate, compare.QuickEstimate{
 			Source:             fmt.Sprintf("peak of mode indicator curve %d with half-power points", q.Curve+1),
-			NaturalFrequencyHz: q.NaturalFrequencyHz, DampingRatio: finiteOrNil(q.DampingRatio)})
+			NaturalFrequencyHz: q.NaturalFrequencyHz, DampingRatio: compare.Finite(q.DampingRatio)})
 	}
 	for _, w := range fit.Warnings {
 		switch w.Code {
@@ -245,7 +245,7 @@ func analyzeDrop(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (
 	if err != nil {
 		return ingest.Summary{}, err
 	}
-	pos := sensorPositions(setup)
+	pos := ingest.SensorPositionsM(setup.Sensors)
 	data := make([][]float64, len(setup.Sensors))
 	for i, s := range setup.Sensors {
 		data[i] = log.Channel(s.Channel)
@@ -263,7 +263,7 @@ func analyzeDrop(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (
 	for _, q := range fit.LogDecrement {
 		res.Analysis.QuickEstimate = append(res.Analysis.QuickEstimate, compare.QuickEstimate{
 			Source:             "logarithmic decrement of " + setup.Sensors[q.Channel].Channel,
-			NaturalFrequencyHz: q.NaturalFrequencyHz, DampingRatio: finiteOrNil(q.DampingRatio)})
+			NaturalFrequencyHz: q.NaturalFrequencyHz, DampingRatio: compare.Finite(q.DampingRatio)})
 	}
 	for _, w := range fit.Warnings {
 		res.Warnings = append(res.Warnings, w.Message)
@@ -278,30 +278,15 @@ func analyzeDrop(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (
 	return log.Summary, nil
 }
 
-func sensorPositions(setup *ingest.Setup) []float64 {
-	pos := make([]float64, len(setup.Sensors))
-	for i, s := range setup.Sensors {
-		pos[i] = s.XM
-	}
-	return pos
-}
-
-func finiteOrNil(x float64) *float64 {
-	if math.IsNaN(x) || math.IsInf(x, 0) {
-		return nil
-	}
-	return &x
-}
-
 // measuredJSON writes one identified mode in the contract's form; sd holds
 // the standard deviations of fn, zeta, pitch per bounce and node.
 func measuredJSON(label string, fnHz, fdHz, zeta, ppb, nodeM float64, sd [4]float64, shape []complex128,
 	posM []float64, method string) compare.ModeJSON {
 	m := compare.ModeJSON{Label: label, NaturalFrequencyHz: fnHz, NaturalFrequencyRadPerS: 2 * math.Pi * fnHz,
-		DampedFrequencyHz: fdHz, DampingRatio: zeta, PitchPerBounceRadPerM: finiteOrNil(ppb), NodeM: finiteOrNil(nodeM),
+		DampedFrequencyHz: fdHz, DampingRatio: zeta, PitchPerBounceRadPerM: compare.Finite(ppb), NodeM: compare.Finite(nodeM),
 		Method: method,
 		Uncertainty: &compare.Uncertainty{NaturalFrequencyHz: sd[0], DampingRatio: sd[1],
-			PitchPerBounceRadPerM: finiteOrNil(sd[2]), NodeM: finiteOrNil(sd[3])}}
+			PitchPerBounceRadPerM: compare.Finite(sd[2]), NodeM: compare.Finite(sd[3])}}
 	for i, w := range shape {
 		m.SensorShape = append(m.SensorShape, compare.SensorShapeJSON{XM: posM[i], Re: real(w), Im: imag(w)})
 	}

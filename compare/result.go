@@ -3,6 +3,8 @@ package compare
 import (
 	"encoding/json"
 	"math"
+
+	"github.com/ridemodes/ridemodes/ingest"
 )
 
 // Result is the JSON result of the contract. Commands fill the parts they
@@ -68,6 +70,10 @@ type LogRef struct {
 	SampleRateHz float64  `json:"sample_rate_hz"`
 	DurationS    float64  `json:"duration_s"`
 	Notes        []string `json:"notes"`
+	// Quality holds the reader's data-quality findings (clipping, dropouts,
+	// offsets, roll-off, rate) with channel, line and time; their messages
+	// are in the result's warnings too.
+	Quality []ingest.Warning `json:"quality,omitempty"`
 }
 
 // ModelJSON is the model part of a result.

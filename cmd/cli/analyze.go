@@ -143,6 +143,7 @@ func runAnalyze(logPath string, af *analyzeFlags, out io.Writer) (*analysis, boo
 			res.Analysis.Choices = append(res.Analysis.Choices, note)
 		}
 	}
+	res.Log.Quality = quality
 	logWarnings := make([]string, 0, len(quality))
 	for _, w := range quality {
 		logWarnings = append(logWarnings, w.String())

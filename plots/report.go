@@ -165,6 +165,7 @@ type reportView struct {
 	Warnings                   []string
 	Method                     []string
 	Quick                      []quickRow
+	QuickNotes                 []string
 	Figures                    []figureView
 }
 
@@ -286,6 +287,7 @@ func newReportView(in ReportInput) reportView {
 		for _, q := range a.QuickEstimate {
 			v.Quick = append(v.Quick, quickRow{Source: q.Source, FreqHz: num(q.NaturalFrequencyHz, 3), Damping: optNum(q.DampingRatio, 3)})
 		}
+		v.QuickNotes = a.QuickEstimateNotes
 	}
 	v.Method = append(v.Method, in.Choices...)
 	return v

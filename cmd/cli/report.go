@@ -23,9 +23,6 @@ func writeReport(dir string, a *analysis) error {
 		Result:  a.result,
 		Shapes:  shapeData(a.result, a.setup),
 	}
-	if a.result.Analysis != nil {
-		in.Choices = a.result.Analysis.Choices
-	}
 	if a.fit != nil {
 		in.FRF = frfData(a)
 		in.Indicator, in.Stabilisation = indicatorData(a)

@@ -185,7 +185,7 @@ func NewFRFStage(channels []string, sensors []ingest.Sensor, inputs []ingest.Inp
 // start builds the decimator and the accumulators once the stream's rate is known.
 func (s *FRFStage) start(fsHz float64) error {
 	if s.opt.BandHighHz >= fsHz/2 {
-		return fmt.Errorf("identify: the band's upper edge %g Hz is at or above the Nyquist frequency %g Hz of the log",
+		return fmt.Errorf("identify: the band's upper edge %g Hz is at or above the Nyquist frequency %.6g Hz of the log",
 			s.opt.BandHighHz, fsHz/2)
 	}
 	s.fsHz = fsHz

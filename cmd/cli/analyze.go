@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -127,6 +128,10 @@ func runAnalyze(logPath string, af *analyzeFlags, out io.Writer) (*analysis, boo
 		sum, err = analyzeDrop(r, done, af, a)
 	}
 	if err != nil {
+		if len(res.Warnings) > 0 {
+			// What the stages noticed before the failure often explains it.
+			err = fmt.Errorf("%w (noticed before the failure: %s)", err, strings.Join(res.Warnings, "; "))
+		}
 		return nil, false, withPath(logPath, err)
 	}
 	info := r.Info()

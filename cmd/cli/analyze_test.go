@@ -208,6 +208,11 @@ func TestAnalyzeDropEndToEnd(t *testing.T) {
 	if _, err := os.Stat(filepath.Join(dir, "rep", "time-history.png")); err != nil {
 		t.Error(err)
 	}
+	// An upside-down band is a usage error, not a crash in the fit.
+	if code, _, errs := run(t, "analyze", logPath, "--setup", dropSetup, "--band-low", "5", "--band-high", "2"); code != exitUsage ||
+		!strings.Contains(errs, "0 < low < high") {
+		t.Errorf("upside-down band: exit %d, %s", code, errs)
+	}
 }
 
 func TestSpectraCommand(t *testing.T) {

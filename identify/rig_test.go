@@ -2,6 +2,7 @@ package identify
 
 import (
 	"bytes"
+	"flag"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -120,13 +121,18 @@ func runRig(t *testing.T, c rigCase) *modal.Result {
 	return fit
 }
 
+// rigCases sets how many seeded logs TestRigRouteAccuracy runs; the default
+// 20 keeps go test ./... quick, a longer sweep is
+// go test ./identify -run RigRouteAccuracy -rig.cases 100 -v.
+var rigCases = flag.Int("rig.cases", 20, "number of seeded rig logs in TestRigRouteAccuracy")
+
 func TestRigRouteAccuracy(t *testing.T) {
 	rng := rand.New(rand.NewPCG(2026, 12))
-	const cases = 20
+	cases := *rigCases
 	var within, total int
 	var worstF, worstZ, worstN float64
 	for i := 0; i < cases; i++ {
-		zLo, zHi := 0.05+0.35*float64(i)/cases, 0.05+0.35*float64(i+1)/cases
+		zLo, zHi := 0.05+0.35*float64(i)/float64(cases), 0.05+0.35*float64(i+1)/float64(cases)
 		c := drawRigCase(rng, zLo, zHi)
 		fit := runRig(t, c)
 		if len(fit.Modes) != 2 {

@@ -199,7 +199,7 @@ func (q *chanQuality) finish(st runningStats) []Warning {
 		gravity := math.Abs(math.Abs(st.mean)-standardGravity) < gravityBandFrac*standardGravity && sd < standardGravity
 		if res, ok := q.hp.result(); ok && res.highPass && !gravity {
 			w = append(w, Warning{Code: WarnHighPass, Channel: q.name, Message: fmt.Sprintf(
-				"the spectrum falls away below 1 Hz as a high-pass (AC-coupled, IEPE/ICP) accelerometer's does: the 0.1-0.2 Hz level is %.0f dB under the 0.25-0.45 Hz level (power rising as about f^%.1f) and the 0.1-0.25 Hz level %.0f dB under the 0.8-2 Hz level. Such a sensor shifts the phase at the body modes and biases damping and mode shapes: use DC-response accelerometers, or ignore this if the drive had no content below 0.5 Hz",
+				"the spectrum falls away below 1 Hz as a high-pass (AC-coupled, IEPE-type) accelerometer's does: the 0.1-0.2 Hz level is %.0f dB under the 0.25-0.45 Hz level (power rising as about f^%.1f) and the 0.1-0.25 Hz level %.0f dB under the 0.8-2 Hz level. Such a sensor shifts the phase at the body modes and biases damping and mode shapes: use DC-response accelerometers, or ignore this if the drive had no content below 0.5 Hz",
 				-10*math.Log10(res.lowMid), res.slope, -10*math.Log10(res.dropRatio))})
 		}
 	}

@@ -2,7 +2,7 @@ package ingest
 
 import "math"
 
-// hpDetector is the streaming test for a high-pass (AC-coupled, IEPE/ICP)
+// hpDetector is the streaming test for a high-pass (AC-coupled, IEPE-type)
 // accelerometer.
 //
 // The idea: below its corner fc a first-order high-pass multiplies the power

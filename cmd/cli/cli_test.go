@@ -133,9 +133,11 @@ func TestVersionAndCompletion(t *testing.T) {
 }
 
 func TestHelpCarriesCautions(t *testing.T) {
-	_, out, _ := run(t, "simulate", "--help")
-	if !strings.Contains(out, "Safety: rig and drop tests can hurt people") || !strings.Contains(out, "licensed practice") {
-		t.Errorf("simulate --help lacks the cautions:\n%s", out)
+	for _, c := range []string{"simulate", "analyze", "spectra", "demo"} {
+		_, out, _ := run(t, c, "--help")
+		if !strings.Contains(out, "Safety: rig and drop tests can hurt people") || !strings.Contains(out, "licensed practice") {
+			t.Errorf("%s --help lacks the cautions:\n%s", c, out)
+		}
 	}
 }
 

@@ -61,8 +61,11 @@ into the car body's bounce and pitch modes (natural frequency, damping ratio,
 pitch per bounce, node), sets them beside the design model of a rigid body on
 front and rear springs and dampers, and back-calculates the effective ride rates.
 
-Start with "ridemodes model --setup car.toml" to see the design model's modes,
-and "ridemodes simulate" to make a synthetic log for planning a test.`,
+Start with "ridemodes demo" for the whole job on an invented example car, or
+"ridemodes model --setup car.toml" to see your design model's modes.`,
+		Example: `  ridemodes demo
+  ridemodes model --setup car.toml
+  ridemodes analyze rig.csv --setup car.toml --json result.json --report report/`,
 		Version:       version(),
 		SilenceUsage:  true,
 		SilenceErrors: true,

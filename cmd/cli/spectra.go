@@ -6,6 +6,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/identify"
 	"github.com/ridemodes/ridemodes/identify/spectral"
 	"github.com/ridemodes/ridemodes/ingest"
@@ -30,7 +31,9 @@ Two pans on one axle are averaged into that axle's input. Without inputs it
 writes the auto spectra (PSD) of the sensors and their cross spectra.
 
 The choices made (decimation, segment length, resolution, averages, expected
-resolution bias) are printed.`,
+resolution bias) are printed.
+
+` + compare.Cautions,
 		Example: `  ridemodes spectra rig.csv --setup car.toml --csv frf.csv
   ridemodes spectra rig.csv --setup car.toml --csv frf.csv --start 30 --band-high 3`,
 		Args: usageArgs(cobra.ExactArgs(1)),

@@ -40,6 +40,9 @@ type Analysis struct {
 	// ModeShapeMAC is the MAC between the two measured mode shapes (near 0:
 	// well separated shapes).
 	ModeShapeMAC float64 `json:"mode_shape_mac"`
+	// CoherenceInBand is the mean multiple coherence of each body sensor's
+	// FRFs over the band (rig tests), in the setup's sensor order.
+	CoherenceInBand []float64 `json:"coherence_in_band,omitempty"`
 }
 
 // QuickEstimate is a single-mode estimate (peak picking with half-power

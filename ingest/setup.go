@@ -122,6 +122,12 @@ type Analysis struct {
 	BandLowHz    float64
 	BandHighHz   float64
 	Window       string
+	// SegmentSamples is the Welch segment length after decimation, a power
+	// of two (0: chosen from the damping).
+	SegmentSamples int
+	// MaxModelOrder is the highest model order of the fit's sweep, even and
+	// at least 4 (0: the method's default).
+	MaxModelOrder int
 }
 
 // SetupError is a problem in a setup file. Line is 1-based (0 when the
@@ -199,6 +205,9 @@ type rawAnalysis struct {
 	BandLowHz    *float64 `toml:"band_low_hz"`
 	BandHighHz   *float64 `toml:"band_high_hz"`
 	Window       *string  `toml:"window"`
+	// SegmentSamples and MaxModelOrder are integers in the file.
+	SegmentSamples *int `toml:"segment_samples"`
+	MaxModelOrder  *int `toml:"max_model_order"`
 }
 
 type rawTargets struct {
@@ -425,6 +434,20 @@ func (v *validator) setup(raw *rawSetup) *Setup {
 			if !KnownWindow(a.Window) {
 				v.fail("analysis.window", "analysis.window", "unknown window %q; use one of %s",
 					a.Window, strings.Join(Windows, ", "))
+			}
+		}
+		if p := ra.SegmentSamples; p != nil {
+			a.SegmentSamples = *p
+			if n := *p; n < 16 || n&(n-1) != 0 {
+				v.fail("analysis.segment_samples", "analysis.segment_samples",
+					"must be a power of two of at least 16 (got %d); or leave it out to choose it from the damping", n)
+			}
+		}
+		if p := ra.MaxModelOrder; p != nil {
+			a.MaxModelOrder = *p
+			if n := *p; n < 4 || n%2 == 1 {
+				v.fail("analysis.max_model_order", "analysis.max_model_order",
+					"must be even and at least 4, room for two modes (got %d)", n)
 			}
 		}
 	}

@@ -91,6 +91,8 @@ func TestParseBadSetups(t *testing.T) {
 		{"syntax error", []edit{{"x_m = 0.9", "x_m 0.9"}}, 11, "", "TOML syntax"},
 		{"unknown window", []edit{{"[[input]]\nchannel = \"pf\"", "[analysis]\nwindow = \"blackmanish\"\n\n[[input]]\nchannel = \"pf\""}}, 18, "analysis.window", "unknown window"},
 		{"band upside down", []edit{{"[[input]]\nchannel = \"pf\"", "[analysis]\nband_low_hz = 5\nband_high_hz = 2\n\n[[input]]\nchannel = \"pf\""}}, 19, "analysis.band_high_hz", "must exceed"},
+		{"segment not a power of two", []edit{{"[[input]]\nchannel = \"pf\"", "[analysis]\nsegment_samples = 1000\n\n[[input]]\nchannel = \"pf\""}}, 18, "analysis.segment_samples", "power of two"},
+		{"odd model order", []edit{{"[[input]]\nchannel = \"pf\"", "[analysis]\nmax_model_order = 7\n\n[[input]]\nchannel = \"pf\""}}, 18, "analysis.max_model_order", "even"},
 		{"binary garbage", []edit{{"mass_kg = 1400", "mass_kg = 14\x0000"}}, 0, "", "binary"},
 	}
 	for _, c := range cases {

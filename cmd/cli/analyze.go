@@ -68,7 +68,7 @@ a check in [targets] failed.
 	f.StringVar(&af.setupPath, "setup", "", "setup file (TOML): vehicle, sensors, inputs, targets")
 	f.StringVar(&af.jsonPath, "json", "", "write the result as JSON to this file")
 	f.StringVar(&af.reportDir, "report", "", "write an HTML report with figures into this folder")
-	f.IntVar(&af.maxOrder, "max-order", 0, "highest model order of the fit's sweep (default: the method's own)")
+	f.IntVar(&af.maxOrder, "max-order", 0, "highest model order of the fit's sweep, even, at least 4 (default from [analysis], else the method's own)")
 	f.IntVar(&af.event, "event", 0, "drop test: which release to analyse, counted from 0")
 	af.lf.register(cmd)
 	cmd.MarkFlagRequired("setup")
@@ -106,6 +106,9 @@ func runAnalyze(logPath string, af *analyzeFlags, out io.Writer) (*analysis, boo
 	}
 	if af.event < 0 {
 		return nil, false, usageError{errors.New("--event counts releases from 0")}
+	}
+	if af.maxOrder == 0 {
+		af.maxOrder = setup.Analysis.MaxModelOrder
 	}
 	res := &compare.Result{Tool: compare.Tool{Name: "ridemodes", Version: version()}}
 	if sum, err := fileSHA256(af.setupPath); err == nil {
@@ -221,6 +224,7 @@ func analyzeRig(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (i
 	res.Analysis.Choices = append(res.Analysis.Choices, fit.OrderReason)
 	res.Analysis.FitResidual = fit.NormalisedResidual
 	res.Analysis.ModeShapeMAC = fit.MAC
+	res.Analysis.CoherenceInBand = fit.CoherenceInBand
 	for _, q := range fit.Quick {
 		res.Analysis.QuickEstimate = append(res.Analysis.QuickEstimate, compare.QuickEstimate{
 			Source:             fmt.Sprintf("peak of mode indicator curve %d with half-power points", q.Curve+1),

@@ -29,7 +29,7 @@ func (f *logFlags) register(cmd *cobra.Command) {
 	fl.BoolVar(&f.resample, "resample", false, "accept jittery time steps and resample onto a uniform grid (warns)")
 	fl.Float64Var(&f.bandLowHz, "band-low", 0, "analysis band, lower edge in Hz (default from [analysis], else 0.5)")
 	fl.Float64Var(&f.bandHighHz, "band-high", 0, "analysis band, upper edge in Hz (default from [analysis], else 4)")
-	fl.IntVar(&f.segment, "segment", 0, "Welch segment length in samples after decimation, a power of two (default: chosen from the damping)")
+	fl.IntVar(&f.segment, "segment", 0, "Welch segment length in samples after decimation, a power of two (default from [analysis], else chosen from the damping)")
 	fl.StringVar(&f.window, "window", "", "spectral window: hann, hamming, flattop or rectangular (default from [analysis], else hann)")
 	cmd.RegisterFlagCompletionFunc("window", cobra.FixedCompletions(ingest.Windows, cobra.ShellCompDirectiveNoFileComp))
 }
@@ -63,7 +63,11 @@ func (f *logFlags) frfOptions(setup *ingest.Setup) (identify.FRFOptions, error) 
 	if err != nil {
 		return identify.FRFOptions{}, err
 	}
-	return identify.FRFOptions{BandLowHz: lo, BandHighHz: hi, SegmentLen: f.segment, Window: w}, nil
+	seg := setup.Analysis.SegmentSamples
+	if f.segment != 0 {
+		seg = f.segment
+	}
+	return identify.FRFOptions{BandLowHz: lo, BandHighHz: hi, SegmentLen: seg, Window: w}, nil
 }
 
 // windowNamed maps the setup's window names to the spectral package's windows.

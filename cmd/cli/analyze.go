@@ -224,7 +224,9 @@ func analyzeRig(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (i
 	res.Analysis.Choices = append(res.Analysis.Choices, fit.OrderReason)
 	res.Analysis.FitResidual = fit.NormalisedResidual
 	res.Analysis.ModeShapeMAC = fit.MAC
-	res.Analysis.CoherenceInBand = fit.CoherenceInBand
+	if allFinite(fit.CoherenceInBand) {
+		res.Analysis.CoherenceInBand = fit.CoherenceInBand
+	}
 	for _, q := range fit.Quick {
 		res.Analysis.QuickEstimate = append(res.Analysis.QuickEstimate, compare.QuickEstimate{
 			Source:             fmt.Sprintf("peak of mode indicator curve %d with half-power points", q.Curve+1),
@@ -271,6 +273,9 @@ func analyzeDrop(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (
 	res.Analysis.FitResidual = fit.NormalisedResidual
 	res.Analysis.ModeShapeMAC = fit.MAC
 	for _, q := range fit.LogDecrement {
+		if math.IsNaN(q.NaturalFrequencyHz) {
+			continue // too few half-cycles for an estimate
+		}
 		res.Analysis.QuickEstimate = append(res.Analysis.QuickEstimate, compare.QuickEstimate{
 			Source:             "logarithmic decrement of " + setup.Sensors[q.Channel].Channel,
 			NaturalFrequencyHz: q.NaturalFrequencyHz, DampingRatio: compare.Finite(q.DampingRatio)})
@@ -318,4 +323,13 @@ func writeOutputs(a *analysis, jsonPath, reportDir string) error {
 		return writeReport(reportDir, a)
 	}
 	return nil
+}
+
+func allFinite(xs []float64) bool {
+	for _, x := range xs {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return false
+		}
+	}
+	return true
 }

@@ -68,7 +68,7 @@ func printSummary(w io.Writer, res *compare.Result) {
 	}
 	tw.Flush()
 	if u := res.Updated; u != nil {
-		fmt.Fprintf(w, "\nEffective rates that make the model match (%s):\n", u.Method)
+		fmt.Fprintf(w, "\nEffective rates that make the model match\n  method: %s\n", u.Method)
 		var sd compare.UpdatedUncertainty
 		if u.Uncertainty != nil {
 			sd = *u.Uncertainty

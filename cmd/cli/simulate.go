@@ -30,7 +30,10 @@ the CSV dialect that analyze reads, for planning a test and for self-checks.
         is the front delayed by wheelbase/speed). The response is exact: computed
         in the frequency domain from the model's transmissibility.
   drop: the car rests on blocks, then both axles drop at once and the body
-        decays freely; only the [[sensor]] channels are logged.
+        decays freely; only the [[sensor]] channels are logged. With
+        --rear-delay the front axle drops first and the rear one the given
+        time later, as when the car is rolled forward off the blocks, which
+        excites pitch far more.
 
 Noise is white and Gaussian, its standard deviation the given fraction of each
 channel's RMS (rig) or peak (drop). The same flags and seed give the same file,
@@ -38,7 +41,8 @@ byte for byte. Synthetic logs are not measurements.
 
 ` + compare.Cautions,
 		Example: `  ridemodes simulate --setup car.toml --test rig --out rig.csv --duration 300 --noise 0.05
-  ridemodes simulate --setup car.toml --test drop --out drop.csv --rate 500 --units g`,
+  ridemodes simulate --setup car.toml --test drop --out drop.csv --rate 500 --units g
+  ridemodes simulate --setup car.toml --test drop --out rolled.csv --rear-delay 0.5`,
 		Args: usageArgs(cobra.NoArgs),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			setup, err := ingest.LoadSetup(setupPath)
@@ -95,6 +99,7 @@ byte for byte. Synthetic logs are not measurements.
 	f.Float64Var(&o.RoadSpeedMPerS, "road-speed", o.RoadSpeedMPerS, "road drive: vehicle speed in m/s")
 	f.Float64Var(&d.DropHeightM, "drop-height", d.DropHeightM, "drop: height of the blocks in m")
 	f.Float64Var(&d.PreTriggerS, "pre-trigger", d.PreTriggerS, "drop: rest before the release in s")
+	f.Float64Var(&d.RearDelayS, "rear-delay", d.RearDelayS, "drop: the rear axle drops this many seconds after the front, as when the car is rolled forward off blocks (wheelbase / rolling speed)")
 	cmd.MarkFlagRequired("setup")
 	cmd.MarkFlagRequired("test")
 	cmd.MarkFlagRequired("out")

@@ -12,6 +12,10 @@
 //   - Drop: the pans step down at the release instant; from the state just
 //     after the step (compare.Vehicle.StepState) the body is propagated with
 //     the exact discrete transition matrix exp(A dt) of the state matrix.
+//     A car rolled off the blocks (Options.RearDelayS > 0) drops the front
+//     axle first and the rear one the delay later: the rear step adds its
+//     own StepState to the propagated state, and a step between samples is
+//     propagated in two exact parts (see Drop).
 //
 // Sensor noise is white and Gaussian with a standard deviation that is a
 // fraction of each channel's clean RMS (rig) or peak absolute value (drop).

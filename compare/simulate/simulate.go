@@ -50,6 +50,12 @@ type Options struct {
 
 	DropHeightM float64 // drop only: height of the blocks
 	PreTriggerS float64 // drop only: rest before the release
+	// RearDelayS (drop only, s, >= 0) is how long after the front axle the
+	// rear axle drops, as when the car is rolled forward off the blocks
+	// (wheelbase / rolling speed). 0, the default, drops both axles at once.
+	// It need not be a whole number of samples; the rear step must fall at
+	// or before the last sample.
+	RearDelayS float64
 }
 
 // Defaults returns the default options for test "rig" or "drop".
@@ -94,6 +100,9 @@ func (o *Options) check(rig bool) error {
 		}
 		if !(o.PreTriggerS >= 0) || o.PreTriggerS >= o.DurationS {
 			return fmt.Errorf("simulate: the pre-trigger time must lie in [0, duration) (got %g s)", o.PreTriggerS)
+		}
+		if !(o.RearDelayS >= 0) || math.IsInf(o.RearDelayS, 0) {
+			return fmt.Errorf("simulate: the rear axle's delay must be zero or positive and finite (got %g s)", o.RearDelayS)
 		}
 		return nil
 	}
@@ -282,9 +291,28 @@ func finish(log *Log, o Options, rng *rand.Rand, level func([]float64) float64) 
 }
 
 // Drop simulates a drop test: the car rests on blocks for PreTriggerS, then
-// both axles drop by DropHeightM at once (a step of the pans) and the body
-// decays freely. Each [[sensor]] logs the body's vertical acceleration at its
-// x_m; nothing is logged at the pans.
+// its axles drop by DropHeightM (a step of the pans) and the body decays
+// freely. With RearDelayS = 0 both axles drop at once; otherwise the front
+// pan steps at the release and the rear pan RearDelayS later, as when the
+// car is rolled forward off the blocks. Each [[sensor]] logs the body's
+// vertical acceleration at its x_m; nothing is logged at the pans.
+//
+// The propagation is exact. A step du of the pans at rest moves the static
+// equilibrium by K^-1 Kin du and gives the body the velocity M^-1 Cin du
+// through the dampers; measured from the new equilibrium, the state just
+// after it is compare.Vehicle.StepState(du). Between steps the state x,
+// measured from the current equilibrium, moves by the transition matrix:
+// x(t + dt) = exp(A dt) x(t). The front step gives x = StepState(-h, 0)
+// from the equilibrium on the front wheels and the blocks at the rear. At
+// the rear step the body's position does not change, but the
+// equilibrium moves by K^-1 Kin (0, -h) and the dampers add M^-1 Cin (0, -h)
+// to the velocity, so x(tau+) = x(tau-) + StepState(0, -h): linearity makes
+// the jump the same as that of a rear step from rest. A rear step between
+// two samples, a fraction f of a sample after the earlier one, is
+// propagated over that sample in two exact parts, exp(A f dt) then the jump
+// then exp(A (1-f) dt); a sample that falls on a step logs the state just
+// after it, as the release sample does. The acceleration logged is that of
+// the state matrix, A x, the pans being at rest between steps.
 func Drop(v compare.Vehicle, sensors []ingest.Sensor, o Options) (*Log, error) {
 	if err := v.Validate(); err != nil {
 		return nil, err
@@ -296,28 +324,51 @@ func Drop(v compare.Vehicle, sensors []ingest.Sensor, o Options) (*Log, error) {
 	i0 := int(math.Round(o.PreTriggerS * o.RateHz))
 	dt := 1 / o.RateHz
 	A := v.StateMatrix()
-	var Adt, Phi mat.Dense
-	Adt.Scale(dt, A)
-	Phi.Exp(&Adt)
-	x := v.StepState(-o.DropHeightM, -o.DropHeightM)
+	Phi := transition(A, dt)
+	h := o.DropHeightM
+	x := v.StepState(-h, -h)
+	// The rear step lies frac of a sample after sample rear; rear < 0: no
+	// separate rear step.
+	rear, frac := -1, 0.0
+	var phiBefore, phiAfter *mat.Dense
+	if o.RearDelayS > 0 {
+		x = v.StepState(-h, 0)
+		at := float64(i0) + o.RearDelayS*o.RateHz
+		if at > float64(n-1) {
+			return nil, fmt.Errorf("simulate: the rear axle drops at %.6g s, after the log's last sample at %.6g s; "+
+				"lengthen the log or shorten the rear delay", at*dt, float64(n-1)*dt)
+		}
+		whole := math.Floor(at)
+		rear, frac = int(whole), at-whole
+		if frac > 0 {
+			phiBefore, phiAfter = transition(A, frac*dt), transition(A, (1-frac)*dt)
+		}
+	}
+	jump := v.StepState(0, -h)
 	acc := make([][2]float64, n)
 	for i := i0; i < n; i++ {
+		if i == rear && frac == 0 {
+			x = addStates(x, jump)
+		}
 		for r := 0; r < 2; r++ {
 			for c := 0; c < 4; c++ {
 				acc[i][r] += A.At(2+r, c) * x[c]
 			}
 		}
-		var next compare.State
-		for r := 0; r < 4; r++ {
-			for c := 0; c < 4; c++ {
-				next[r] += Phi.At(r, c) * x[c]
-			}
+		if i == rear && frac > 0 {
+			x = propagate(phiAfter, addStates(propagate(phiBefore, x), jump))
+			continue
 		}
-		x = next
+		x = propagate(Phi, x)
 	}
-	log := &Log{RateHz: o.RateHz, Notes: []string{
-		fmt.Sprintf("ridemodes simulate: drop test, %g m drop at %g s, %g s at %g Hz, seed %d, noise %g, offset %g m/s^2",
-			o.DropHeightM, float64(i0)*dt, o.DurationS, o.RateHz, o.Seed, o.NoiseFraction, o.OffsetMPerS2),
+	note := fmt.Sprintf("ridemodes simulate: drop test, %g m drop at %g s, %g s at %g Hz, seed %d, noise %g, offset %g m/s^2",
+		o.DropHeightM, float64(i0)*dt, o.DurationS, o.RateHz, o.Seed, o.NoiseFraction, o.OffsetMPerS2)
+	if o.RearDelayS > 0 {
+		note = fmt.Sprintf("ridemodes simulate: drop test rolled off the blocks, front %g m drop at %g s, rear axle %g s "+
+			"after the front, %g s at %g Hz, seed %d, noise %g, offset %g m/s^2",
+			o.DropHeightM, float64(i0)*dt, o.RearDelayS, o.DurationS, o.RateHz, o.Seed, o.NoiseFraction, o.OffsetMPerS2)
+	}
+	log := &Log{RateHz: o.RateHz, Notes: []string{note,
 		"synthetic data from the design model in the setup file; not a measurement",
 	}}
 	for _, s := range sensors {
@@ -330,4 +381,32 @@ func Drop(v compare.Vehicle, sensors []ingest.Sensor, o Options) (*Log, error) {
 	rng := rand.New(rand.NewPCG(o.Seed, 0x72696465))
 	finish(log, o, rng, peak)
 	return log, nil
+}
+
+// transition returns exp(A tS), the exact transition matrix of the state
+// over tS seconds.
+func transition(A *mat.Dense, tS float64) *mat.Dense {
+	var At, phi mat.Dense
+	At.Scale(tS, A)
+	phi.Exp(&At)
+	return &phi
+}
+
+// propagate returns phi x.
+func propagate(phi *mat.Dense, x compare.State) compare.State {
+	var next compare.State
+	for r := 0; r < 4; r++ {
+		for c := 0; c < 4; c++ {
+			next[r] += phi.At(r, c) * x[c]
+		}
+	}
+	return next
+}
+
+// addStates returns x + y.
+func addStates(x, y compare.State) compare.State {
+	for r := range x {
+		x[r] += y[r]
+	}
+	return x
 }

@@ -291,3 +291,105 @@ func TestOptionErrors(t *testing.T) {
 		t.Error("zero drop height: no error")
 	}
 }
+
+// Rear delays of the roll-off tests at 200 Hz: 0.25 s is 50 samples (on the
+// grid), 0.3125 s is 62.5 (half-way between two samples); both are exact in
+// binary, so the test knows which samples lie after the rear step.
+var rollOffDelaysS = []float64{0.25, 0.3125}
+
+func TestRollOffDropMatchesSuperposedStepResponses(t *testing.T) {
+	// Independent computation: the model is linear, so the response to the
+	// front step at the release and the rear step RearDelayS later is the sum
+	// of the two step responses, each the modal superposition of
+	// compare.FreeResponse from its own StepState (the rear one from rest,
+	// delayed). Agreement to decayTol of the peak.
+	for _, delay := range rollOffDelaysS {
+		o := Defaults("drop")
+		o.RearDelayS = delay
+		log, err := Drop(testCar, testSensors, o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		front, err := testCar.NewFreeResponse(testCar.StepState(-o.DropHeightM, 0))
+		if err != nil {
+			t.Fatal(err)
+		}
+		rear, err := testCar.NewFreeResponse(testCar.StepState(0, -o.DropHeightM))
+		if err != nil {
+			t.Fatal(err)
+		}
+		i0 := int(math.Round(o.PreTriggerS * o.RateHz))
+		for si, s := range testSensors {
+			data := log.Columns[si].Data
+			peak := 0.0
+			for _, v := range data {
+				peak = math.Max(peak, math.Abs(v))
+			}
+			for i, v := range data {
+				want := 0.0
+				tS := float64(i-i0) / o.RateHz
+				if i >= i0 {
+					_, acc := front.At(tS)
+					want = acc[0] - s.XM*acc[1]
+				}
+				if tS >= delay {
+					_, acc := rear.At(tS - delay)
+					want += acc[0] - s.XM*acc[1]
+				}
+				if math.Abs(v-want) > decayTol*peak {
+					t.Fatalf("delay %g s, sensor %s sample %d: %.12g, superposition %.12g", delay, s.Channel, i, v, want)
+				}
+			}
+		}
+	}
+}
+
+// minPitchGain is the least factor by which rolling the car off the blocks
+// must raise the ratio of pitch to heave motion over a simultaneous drop
+// (physical check: a simultaneous drop excites pitch only through the
+// car's front-rear asymmetry, a staggered one directly). testCar, which is
+// markedly asymmetric (CG 1.15 m behind the front axle, 1.55 m ahead of the
+// rear), gives about 4.
+const minPitchGain = 3
+
+func TestRollOffExcitesPitch(t *testing.T) {
+	// Heave and pitch acceleration at the CG from the front and rear sensors
+	// (w(s) = z - s theta solved for z and theta); the ratio is the peak
+	// pitch acceleration times the half wheelbase over the peak heave
+	// acceleration.
+	f, r := testSensors[0], testSensors[2]
+	ratio := func(delay float64) float64 {
+		o := Defaults("drop")
+		o.RearDelayS = delay
+		log, err := Drop(testCar, testSensors, o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var zPeak, thPeak float64
+		for i, w1 := range log.Columns[0].Data {
+			w2 := log.Columns[2].Data[i]
+			th := (w2 - w1) / (f.XM - r.XM)
+			z := (f.XM*w2 - r.XM*w1) / (f.XM - r.XM)
+			zPeak, thPeak = math.Max(zPeak, math.Abs(z)), math.Max(thPeak, math.Abs(th))
+		}
+		return thPeak * testCar.WheelbaseM() / 2 / zPeak
+	}
+	base := ratio(0)
+	for _, delay := range rollOffDelaysS {
+		if got := ratio(delay); got < minPitchGain*base {
+			t.Errorf("delay %g s: pitch/heave %.3f, simultaneous %.3f; want at least %g times more", delay, got, base, float64(minPitchGain))
+		} else {
+			t.Logf("delay %g s: pitch/heave %.3f, simultaneous %.3f (%.1f times)", delay, got, base, got/base)
+		}
+	}
+}
+
+func TestRollOffOptionErrors(t *testing.T) {
+	for _, delay := range []float64{-0.1, math.Inf(1), math.NaN(), 9.5} {
+		o := Defaults("drop")
+		o.RearDelayS = delay
+		if _, err := Drop(testCar, testSensors, o); err == nil {
+			t.Errorf("rear delay %g s: no error", delay)
+		}
+	}
+}

@@ -72,7 +72,17 @@ type Event struct {
 	// PeakDeparture is the largest departure from the rest level during the
 	// event, in noise standard deviations (the largest over channels).
 	PeakDeparture float64
+	// Steps are the sample indices at which the pans stepped during the
+	// event (see findSteps), in order; the first is ReleaseIndex. A drop of
+	// both axles at once has one step; a car rolled off the blocks has a
+	// second where the rear wheels land. Only the decay after the last step
+	// is free.
+	Steps []int
 }
+
+// LastStepIndex is the sample of the event's last step, where the free
+// decay begins.
+func (e Event) LastStepIndex() int { return e.Steps[len(e.Steps)-1] }
 
 // ErrNoEvent is matched (errors.Is) by a *NoEventError.
 var ErrNoEvent = errors.New("decay: no release in the log")
@@ -127,7 +137,10 @@ func (e *ConstantChannelError) Error() string {
 // for sustainS (at least minSustainSamples samples); the reference moves
 // with the sample, so slow drift is followed. The event ends at the first
 // quiet stretch after the release (RestIndex), and the detector re-arms
-// there, so several drops in one log give several events.
+// there, so several drops in one log give several events. Within each event
+// the steps of the pans are found by findSteps (Event.Steps): a car rolled
+// off the blocks lands on its rear wheels a wheelbase after the front ones,
+// inside the same event.
 //
 // Detect returns a *NoEventError when there is no release and a
 // *ConstantChannelError for a dead channel. Mismatched channel lengths, no
@@ -207,6 +220,7 @@ func Detect(rateHz float64, channels [][]float64, opt DetectOptions) ([]Event, e
 		for k := i; k < ev.RestIndex; k++ {
 			ev.PeakDeparture = math.Max(ev.PeakDeparture, departure(k, ref))
 		}
+		ev.Steps = findSteps(channels, sd, ev.ReleaseIndex, ev.RestIndex, opt.ThresholdK)
 		events = append(events, ev)
 		ref, i = -1, j
 	}
@@ -215,6 +229,80 @@ func Detect(rateHz float64, channels [][]float64, opt DetectOptions) ([]Event, e
 			NeverAtRest: !everRest, LargestDeparture: largest}
 	}
 	return events, nil
+}
+
+// Step detection.
+const (
+	// stepShare: a later step's jump on a channel must reach this share of
+	// the largest jump on that channel in the event (the release's, as a
+	// rule). It keeps the smooth decay out: for a sinusoid of amplitude X
+	// the jump measure leaves about X (omega dt)^3 / 2, under 0.008 X for
+	// modes up to 4 Hz logged at 100 Hz or faster, while a step of the pans
+	// makes a jump of the order of the release's.
+	stepShare = 0.1
+	// stepGuard: a step is the largest jump measure within this many
+	// samples either side; a step's own side lobes (minus half its jump,
+	// one sample either side) are not steps of their own.
+	stepGuard = 2
+)
+
+// jumpAt returns the jump of x between samples i-1 and i beyond the smooth
+// motion: the first difference d_i = x_i - x_{i-1} less the mean of its
+// neighbours, d_i - (d_{i-1} + d_{i+1})/2 = 1.5 x_i - 1.5 x_{i-1} +
+// 0.5 x_{i-2} - 0.5 x_{i+1}. It vanishes on any quadratic in time, returns
+// J for a step of J between i-1 and i (and -J/2 one sample either side),
+// and carries sqrt(5) times the sd of white noise on x. It needs
+// 2 <= i <= len(x)-2.
+func jumpAt(x []float64, i int) float64 {
+	return 1.5*(x[i]-x[i-1]) + 0.5*(x[i-2]-x[i+1])
+}
+
+// findSteps returns the steps of the pans in the event that starts at
+// sample release and ends before rest: release itself, then every later
+// sample i at which, on some channel c, the jump measure jumpAt exceeds both
+// thresholdK times its noise sd (sqrt(5) sd[c], sd from noiseSD) and
+// stepShare times the largest jump on channel c over the event, and which
+// carries the largest such score (jump over the larger of the two
+// thresholds, taken over the channels) within stepGuard samples either
+// side. A step of the pans makes the body's acceleration jump at once (the
+// springs' new static deflection and the dampers' impulse), which no free
+// decay does; a spike in the log inside the event counts as a step too, so
+// the fit starts after it.
+func findSteps(channels [][]float64, sd []float64, release, rest int, thresholdK float64) []int {
+	steps := []int{release}
+	// jumpAt over [lo, hi); Detect's release lies at least its rest length
+	// (8 samples or more) into the log, so jumpAt reaches back far enough.
+	lo, hi := release, min(rest, len(channels[0])-1)
+	if hi-lo <= stepGuard {
+		return steps
+	}
+	floor := make([]float64, len(channels))
+	for c, x := range channels {
+		largest := 0.0
+		for i := lo; i < hi; i++ {
+			largest = math.Max(largest, math.Abs(jumpAt(x, i)))
+		}
+		floor[c] = math.Max(thresholdK*math.Sqrt(5)*sd[c], stepShare*largest)
+	}
+	score := make([]float64, hi-lo)
+	for k := range score {
+		for c, x := range channels {
+			score[k] = math.Max(score[k], math.Abs(jumpAt(x, lo+k))/floor[c])
+		}
+	}
+	for k := 1; k < len(score); k++ { // score[0] is the release
+		if score[k] <= 1 {
+			continue
+		}
+		top := true // of equal scores, the earliest counts
+		for j := max(k-stepGuard, 0); j <= min(k+stepGuard, len(score)-1) && top; j++ {
+			top = j == k || score[j] < score[k] || (j > k && score[j] == score[k])
+		}
+		if top {
+			steps = append(steps, lo+k)
+		}
+	}
+	return steps
 }
 
 // checkChannels panics on caller mistakes in the shape of the data.

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"strings"
 
 	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
@@ -18,10 +19,11 @@ const (
 	DefaultBandLowHz  = 0.5
 	DefaultBandHighHz = 4
 	DefaultMaxOrder   = 20
-	// DefaultSettleS is the time after the release that is left out of the
-	// fit. The release is not free decay: in a real drop the wheels fall
-	// onto the tyres, and the tyre contact and wheel hop (10-15 Hz) ring for
-	// a few of their own time constants (at 12 Hz and damping ratio 0.25,
+	// DefaultSettleS is the time after the release (after the last step of
+	// the pans, when there are several) that is left out of the fit. The
+	// release is not free decay: in a real drop the wheels fall onto the
+	// tyres, and the tyre contact and wheel hop (10-15 Hz) ring for a few of
+	// their own time constants (at 12 Hz and damping ratio 0.25,
 	// 1/(zeta omega) = 0.053 s); the model, by contrast, applies an ideal step.
 	// 0.1 s is about two such time constants and under a quarter of a body
 	// cycle, so little of the decay is lost.
@@ -49,8 +51,9 @@ type Options struct {
 	// MaxOrder is the highest ERA model order of the sweep (even, at least
 	// 4; default DefaultMaxOrder). It is lowered when the window is short.
 	MaxOrder int
-	// SettleS is the time after the release left out of the fit (default
-	// DefaultSettleS).
+	// SettleS is the time after the event's last step (the release, unless
+	// the axles came off the blocks one after the other) left out of the fit
+	// (default DefaultSettleS).
 	SettleS float64
 	// Detect sets the event detector.
 	Detect DetectOptions
@@ -182,13 +185,15 @@ type Result struct {
 // the free decay of the chosen event with two modes of common poles:
 //
 //  1. Detect the releases; analyse event opt.Event.
-//  2. Window: from SettleS after the release to the rest found by Detect
-//     (where the decay has sunk to about 1.6 noise sd).
+//  2. Window: from SettleS after the last step of the event (the release,
+//     or for a car rolled off the blocks the rear wheels landing; see
+//     Event.Steps) to the rest found by Detect (where the decay has sunk to
+//     about 1.6 noise sd).
 //  3. Subtract the pre-release rest level, low-pass and decimate to about
 //     decimatedRatePerBandHz times the band's upper edge with the Kaiser
 //     FIR of package spectral; the first fitted sample is centred
-//     max(SettleS, filter half-length) after the release, so the filter
-//     never reaches back before the release.
+//     max(SettleS, filter half-length) after the last step, so the filter
+//     never reaches back before it.
 //  4. ERA (eraSweep) for orders 2..MaxOrder with a stabilisation check; the
 //     two pole groups stable at the most orders start the refinement.
 //  5. Amplitudes and offsets by linear least squares, then a
@@ -246,13 +251,26 @@ func Fit(rateHz float64, channels [][]float64, posM []float64, opt Options) (*Re
 	}
 	res.DecimationFactor, res.FitRateHz, res.NoiseInflation = dec.factor, rateHz/float64(dec.factor), dec.kappa
 	res.WindowStartS, res.WindowEndS = dec.tS[0], dec.tS[len(dec.tS)-1]
+	after := "release"
+	if len(ev.Steps) > 1 {
+		at := make([]string, len(ev.Steps))
+		for k, i := range ev.Steps {
+			at[k] = fmt.Sprintf("%.3f s", float64(i)/rateHz)
+		}
+		res.Reasons = append(res.Reasons, fmt.Sprintf(
+			"the event holds %d steps of the pans, at %s (the body's acceleration jumps at once by more than %g "+
+				"times the noise of the jump measure and %.2g of its largest jump in the event, as no free decay does): the car came off the "+
+				"blocks one axle after the other, and the decay is free only after the last step",
+			len(ev.Steps), strings.Join(at, ", "), opt.Detect.ThresholdK, stepShare))
+		after = "last step"
+	}
 	res.Reasons = append(res.Reasons, fmt.Sprintf(
-		"window %.3f-%.3f s: the first fitted sample lies %.3g s after the release (the settling time, or the "+
+		"window %.3f-%.3f s: the first fitted sample lies %.3g s after the %s (the settling time, or the "+
 			"anti-alias filter's half-length %.3g s if longer, so that the filter reaches back no further than the "+
-			"release): the release is not free decay, the wheels land on the tyres; the last lies where the body is "+
+			"%s): the %s is not free decay, the wheels land on the tyres; the last lies where the body is "+
 			"at rest again (standard deviation over %.3g s within %.3g noise sd: a decay amplitude under about 1.6 sd)",
-		res.WindowStartS, res.WindowEndS, math.Max(opt.SettleS, dec.halfLengthS), dec.halfLengthS,
-		opt.Detect.RestS, quietFactor))
+		res.WindowStartS, res.WindowEndS, math.Max(opt.SettleS, dec.halfLengthS), after, dec.halfLengthS,
+		after, after, opt.Detect.RestS, quietFactor))
 	if dec.factor > 1 {
 		res.Reasons = append(res.Reasons, fmt.Sprintf(
 			"decimated by %d to %.4g Hz (Kaiser FIR of package spectral); residual variance scaled by %.4f for the "+
@@ -360,9 +378,9 @@ func decimateWindow(rateHz float64, channels [][]float64, ev Event, opt Options)
 	}
 	taps := d.Taps()
 	half := (len(taps) - 1) / 2
-	// The first output is centred max(SettleS, half-length) after the
-	// release; its filter reaches back half a length, never before the release.
-	i0 := ev.ReleaseIndex + max(int(math.Round(opt.SettleS*rateHz)), half) - half
+	// The first output is centred max(SettleS, half-length) after the last
+	// step; its filter reaches back half a length, never before that step.
+	i0 := ev.LastStepIndex() + max(int(math.Round(opt.SettleS*rateHz)), half) - half
 	i1 := ev.RestIndex + half
 	out := decimated{factor: q, halfLengthS: float64(half) / rateHz, rawSamples: max(i1-i0, 0), rateHz: rateHz}
 	var h2 float64

@@ -92,6 +92,45 @@ func randomScenario(seed uint64, rateHz float64) scenario {
 
 func sq(x float64) float64 { return x * x }
 
+// Rear delays of the roll-off scenarios: wheelbase / rolling speed for a
+// car pushed off the blocks at walking pace (about 2.5-3 m at 3.5-14 km/h).
+const minRearDelayS, maxRearDelayS = 0.2, 0.8
+
+// rollOffScenario is randomScenario's car, sensors and log conditions,
+// rolled forward off the blocks instead of dropped at once: the rear axle
+// drops a seeded delay in [minRearDelayS, maxRearDelayS] after the front
+// (drawn from a stream of its own, so the car is the same).
+func rollOffScenario(seed uint64, rateHz float64) scenario {
+	s := randomScenario(seed, rateHz)
+	rng := rand.New(rand.NewPCG(seed, 0x726f6c6c))
+	s.opt.RearDelayS = minRearDelayS + (maxRearDelayS-minRearDelayS)*rng.Float64()
+	return s
+}
+
+// freeState is the body state (compare.State, from the final static
+// equilibrium) at which the free decay begins: just after the step of both
+// axles, or for a car rolled off the blocks just after the rear step,
+// exp(A tau) StepState(-h, 0) + StepState(0, -h) (the front step's response
+// propagated over the delay tau, plus the rear step's jump).
+func (s scenario) freeState() compare.State {
+	h := s.opt.DropHeightM
+	if s.opt.RearDelayS == 0 {
+		return s.car.StepState(-h, -h)
+	}
+	var at, phi mat.Dense
+	at.Scale(s.opt.RearDelayS, s.car.StateMatrix())
+	phi.Exp(&at)
+	front, rear := s.car.StepState(-h, 0), s.car.StepState(0, -h)
+	var x compare.State
+	for r := range x {
+		x[r] = rear[r]
+		for c := range front {
+			x[r] += phi.At(r, c) * front[c]
+		}
+	}
+	return x
+}
+
 // log simulates the scenario and returns the channels and sensor positions.
 func (s scenario) log(t testing.TB) ([][]float64, []float64) {
 	t.Helper()
@@ -125,11 +164,12 @@ func (s scenario) truth(t testing.TB) []compare.Mode {
 // frequency, the largest over sensors of the mode's initial acceleration
 // amplitude 2|lambda^2 c (v_z - s v_theta)| divided by that sensor's peak
 // absolute acceleration, for the drop of the scenario: how strongly the drop
-// excites the mode where it is best seen. The modal decomposition is that of
+// excites the mode where it is best seen. The amplitudes are those at the
+// start of the free decay (freeState). The modal decomposition is that of
 // compare.FreeResponse (right and left eigenvectors of the state matrix).
 func (s scenario) modeShare(t testing.TB, peaks []float64) [2]float64 {
 	t.Helper()
-	x0 := s.car.StepState(-s.opt.DropHeightM, -s.opt.DropHeightM)
+	x0 := s.freeState()
 	var eig mat.Eigen
 	if !eig.Factorize(s.car.StateMatrix(), mat.EigenBoth) {
 		t.Fatal("eigen")

@@ -173,15 +173,7 @@ func TestBuiltCarAgainstDesign(t *testing.T) {
 
 func TestAnalyzeDropEndToEnd(t *testing.T) {
 	dir := t.TempDir()
-	base, err := os.ReadFile(exampleSetup)
-	if err != nil {
-		t.Fatal(err)
-	}
-	text := string(base)
-	dropSetup := filepath.Join(dir, "drop.toml")
-	if err := os.WriteFile(dropSetup, []byte(text[:strings.Index(text, "[[input]]")]), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	dropSetup := dropSetupFile(t, dir)
 	logPath := filepath.Join(dir, "drop.csv")
 	if code, _, errs := run(t, "simulate", "--setup", dropSetup, "--test", "drop", "--out", logPath,
 		"--noise", "0.01", "--rate", "400", "--offset", "0.3"); code != 0 {
@@ -251,4 +243,20 @@ func TestSpectraCommand(t *testing.T) {
 	if _, err := os.Stat(out2); err == nil {
 		t.Error("an output was left behind after a failure")
 	}
+}
+
+// dropSetupFile writes the example setup without its [[input]] tables (a
+// drop-test setup) into dir and returns its path.
+func dropSetupFile(t *testing.T, dir string) string {
+	t.Helper()
+	base, err := os.ReadFile(exampleSetup)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := string(base)
+	p := filepath.Join(dir, "drop.toml")
+	if err := os.WriteFile(p, []byte(text[:strings.Index(text, "[[input]]")]), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
 }

@@ -188,15 +188,7 @@ func TestModelShowsRideRateBuildUp(t *testing.T) {
 // truth here) within 3 reported sd.
 func TestSimulateRollOffDrop(t *testing.T) {
 	dir := t.TempDir()
-	base, err := os.ReadFile(exampleSetup)
-	if err != nil {
-		t.Fatal(err)
-	}
-	text := string(base)
-	setup := filepath.Join(dir, "drop.toml")
-	if err := os.WriteFile(setup, []byte(text[:strings.Index(text, "[[input]]")]), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	setup := dropSetupFile(t, dir)
 	logPath := filepath.Join(dir, "rolled.csv")
 	if code, _, errs := run(t, "simulate", "--setup", setup, "--test", "drop", "--out", logPath,
 		"--noise", "0.01", "--rate", "400", "--rear-delay", "0.5"); code != 0 {

@@ -128,7 +128,7 @@ func ModelGuidance(v Vehicle) ([]Check, error) {
 	if err != nil {
 		return nil, err
 	}
-	damped := v.FrontDampingNsPerM > 0 || v.RearDampingNsPerM > 0
+	damped := v.Damped()
 	bm := BodyModes{BounceDampingRatio: math.NaN(), PitchDampingRatio: math.NaN()}
 	for _, m := range ms {
 		z := math.NaN()

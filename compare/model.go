@@ -230,10 +230,13 @@ func (v Vehicle) DampedModes() ([]Mode, error) {
 	return ms, nil
 }
 
+// Damped reports whether the model has any damping.
+func (v Vehicle) Damped() bool { return v.FrontDampingNsPerM != 0 || v.RearDampingNsPerM != 0 }
+
 // Modes returns DampedModes when the model has damping and UndampedModes
 // otherwise.
 func (v Vehicle) Modes() ([]Mode, error) {
-	if v.FrontDampingNsPerM == 0 && v.RearDampingNsPerM == 0 {
+	if !v.Damped() {
 		return v.UndampedModes()
 	}
 	return v.DampedModes()

@@ -166,7 +166,7 @@ func TargetChecks(t ingest.Targets, design Vehicle, paired []MeasuredMode, cmp [
 		for i, c := range cmp {
 			ch := Check{Name: "target." + c.Label + "_damping_ratio"}
 			switch {
-			case design.FrontDampingNsPerM == 0 && design.RearDampingNsPerM == 0:
+			case !design.Damped():
 				ch.Status, ch.Detail = StatusWarn, "the model has no damping to compare with; give "+
 					"front_damping_ns_per_m and rear_damping_ns_per_m in [vehicle]"
 			case c.MeasuredDampingRatio == nil:

@@ -96,10 +96,8 @@ func runAnalyze(logPath string, af *analyzeFlags, out io.Writer) (*analysis, boo
 	if err != nil {
 		return nil, false, err
 	}
-	for _, o := range []string{af.jsonPath} {
-		if o != "" && (sameFile(o, logPath) || sameFile(o, af.setupPath)) {
-			return nil, false, usageError{fmt.Errorf("%s would overwrite an input file", o)}
-		}
+	if o := af.jsonPath; o != "" && (sameFile(o, logPath) || sameFile(o, af.setupPath)) {
+		return nil, false, usageError{fmt.Errorf("--json %s would overwrite an input file", o)}
 	}
 	if af.maxOrder != 0 && (af.maxOrder < 4 || af.maxOrder%2 == 1) {
 		return nil, false, usageError{errors.New("--max-order takes 0 (automatic) or an even number of at least 4 (two modes)")}
@@ -175,11 +173,7 @@ func assess(res *compare.Result, setup *ingest.Setup) (bool, error) {
 	if err != nil {
 		return false, fmt.Errorf("%s: %w", setup.Path, err)
 	}
-	damped := design.FrontDampingNsPerM > 0 || design.RearDampingNsPerM > 0
-	res.Model = &compare.ModelJSON{Damped: damped}
-	for _, m := range model {
-		res.Model.Modes = append(res.Model.Modes, m.JSON("design model, "+modelMethod(damped)))
-	}
+	res.Model = modelPart(model, design.Damped())
 	measured, err := compare.MeasuredFromJSON(res.Modes)
 	if err != nil {
 		return false, err

@@ -40,7 +40,7 @@ farther from the CG is labelled bounce, the other pitch.`,
 			if err != nil {
 				return fmt.Errorf("%s: %w", setupPath, err)
 			}
-			damped := v.FrontDampingNsPerM > 0 || v.RearDampingNsPerM > 0
+			damped := v.Damped()
 			guidance, err := compare.ModelGuidance(v)
 			if err != nil {
 				return fmt.Errorf("%s: %w", setupPath, err)
@@ -52,11 +52,16 @@ farther from the CG is labelled bounce, the other pitch.`,
 			if sameFile(jsonPath, setupPath) {
 				return usageError{fmt.Errorf("--json %s would overwrite the setup file", jsonPath)}
 			}
-			res, err := modelResult(setupPath, modes, damped)
+			sum, err := fileSHA256(setupPath)
 			if err != nil {
 				return err
 			}
-			res.Checks = guidance
+			res := &compare.Result{
+				Tool:   compare.Tool{Name: "ridemodes", Version: version()},
+				Setup:  &compare.FileRef{Path: setupPath, SHA256: sum},
+				Model:  modelPart(modes, damped),
+				Checks: guidance,
+			}
 			data, err := res.Marshal()
 			if err != nil {
 				return err
@@ -80,20 +85,13 @@ func modelMethod(damped bool) string {
 	return "undamped eigenproblem"
 }
 
-func modelResult(setupPath string, modes []compare.Mode, damped bool) (*compare.Result, error) {
-	sum, err := fileSHA256(setupPath)
-	if err != nil {
-		return nil, err
+// modelPart is the model part of a result: the design model's modes.
+func modelPart(modes []compare.Mode, damped bool) *compare.ModelJSON {
+	m := &compare.ModelJSON{Damped: damped}
+	for _, md := range modes {
+		m.Modes = append(m.Modes, md.JSON("design model, "+modelMethod(damped)))
 	}
-	res := &compare.Result{
-		Tool:  compare.Tool{Name: "ridemodes", Version: version()},
-		Setup: &compare.FileRef{Path: setupPath, SHA256: sum},
-		Model: &compare.ModelJSON{Damped: damped},
-	}
-	for _, m := range modes {
-		res.Model.Modes = append(res.Model.Modes, m.JSON("design model, "+modelMethod(damped)))
-	}
-	return res, nil
+	return m
 }
 
 // nodeWords describes a node position for a reader.

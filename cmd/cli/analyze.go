@@ -87,7 +87,8 @@ type analysis struct {
 	frfSet *modal.FRFSet
 	fit    *modal.Result
 	// Drop route.
-	decay *decay.Result
+	decay   *decay.Result
+	dropLog *ingest.Log
 }
 
 // runAnalyze runs the route the setup calls for and prints the summary.
@@ -262,7 +263,7 @@ func analyzeDrop(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (
 	if err != nil {
 		return log.Summary, err
 	}
-	a.decay = fit
+	a.decay, a.dropLog = fit, log
 	res.Analysis.Choices = append(res.Analysis.Choices, fit.Reasons...)
 	res.Analysis.FitResidual = fit.NormalisedResidual
 	res.Analysis.ModeShapeMAC = fit.MAC

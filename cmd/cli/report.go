@@ -190,17 +190,33 @@ func shapeData(res *compare.Result, setup *ingest.Setup) *plots.ShapeData {
 	return d
 }
 
-// decayData shows the fitted window of a drop test: measured and fitted.
+// decayData shows the whole drop log around the event, in SI units, with
+// the fitted free decay over its window. Long logs are thinned to at most
+// maxDecayPoints samples for the figure (every k-th sample).
 func decayData(a *analysis) *plots.DecayData {
 	c := a.decay.Curves
-	d := &plots.DecayData{TimeS: c.TimeS, FitTimeS: c.TimeS, Unit: "m/s^2",
+	d := &plots.DecayData{FitTimeS: c.TimeS, Unit: "m/s^2",
 		WindowStartS: a.decay.WindowStartS, WindowEndS: a.decay.WindowEndS}
+	sum := a.dropLog.Summary
+	n := sum.Samples
+	step := max(1, n/maxDecayPoints)
+	for i := 0; i < n; i += step {
+		d.TimeS = append(d.TimeS, sum.T0S+float64(i)/sum.SampleRateHz)
+	}
 	for i, s := range a.setup.Sensors {
-		d.Measured = append(d.Measured, plots.Series{Name: s.Channel, Values: c.Measured[i]})
+		data := a.dropLog.Channel(s.Channel)
+		m := plots.Series{Name: s.Channel}
+		for k := 0; k < n; k += step {
+			m.Values = append(m.Values, data[k])
+		}
+		d.Measured = append(d.Measured, m)
 		d.Fitted = append(d.Fitted, plots.Series{Name: s.Channel + " fit", Values: c.Fitted[i]})
 	}
 	return d
 }
+
+// maxDecayPoints bounds the samples drawn per channel in the time history.
+const maxDecayPoints = 20000
 
 // unwrapDeg removes the 360 degree jumps of a phase curve in place, so a
 // phase passing -180 degrees is drawn as one line.

@@ -156,6 +156,16 @@ func TestFigureDataErrors(t *testing.T) {
 			return FRFFigure(d)
 		}, `FRF marker "pitch 1.37 Hz"`, 1},
 		{"indicator empty", func() (*Figure, error) { return IndicatorFigure(IndicatorData{}) }, "indicator frequency", -1},
+		{"indicator peak series count", func() (*Figure, error) {
+			d := synthIndicator()
+			d.PeakSeries = []int{0}
+			return IndicatorFigure(d)
+		}, "indicator peak series", -1},
+		{"indicator peak series out of range", func() (*Figure, error) {
+			d := synthIndicator()
+			d.PeakSeries = []int{0, 5}
+			return IndicatorFigure(d)
+		}, "indicator peak series", 1},
 		{"indicator negative", func() (*Figure, error) {
 			d := synthIndicator()
 			d.Values[1].Values[2] = -1

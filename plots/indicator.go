@@ -18,9 +18,11 @@ type IndicatorData struct {
 	// Values holds one series per singular value, the largest first, each
 	// positive and on FreqHz.
 	Values []Series
-	// Peaks are the peaks picked from the indicator, marked on the first
-	// series.
-	Peaks []Marker
+	// Peaks are the peaks picked from the indicator, each marked on the
+	// series PeakSeries gives (an index into Values), or on the first series
+	// when PeakSeries is nil.
+	Peaks      []Marker
+	PeakSeries []int
 	// LogFrequency puts frequency on a log axis; points at or below 0 Hz
 	// are then left out.
 	LogFrequency bool
@@ -74,15 +76,27 @@ func IndicatorFigure(d IndicatorData) (*Figure, error) {
 		p.Add(l)
 		p.Legend.Add(s.Name, l)
 	}
+	if d.PeakSeries != nil && len(d.PeakSeries) != len(d.Peaks) {
+		return nil, &SeriesError{Series: "indicator peak series", Index: -1, Problem: fmt.Sprintf(
+			"%d series indices for %d peaks", len(d.PeakSeries), len(d.Peaks))}
+	}
 	if len(d.Peaks) > 0 && len(freqHz) > 1 {
-		var largest interp.PiecewiseLinear
-		if err := largest.Fit(freqHz, d.Values[0].Values[first:]); err != nil {
-			return nil, fmt.Errorf("plots: indicator singular value %q: %w", d.Values[0].Name, err)
-		}
 		var pts plotter.XYs
-		for _, m := range d.Peaks {
+		for k, m := range d.Peaks {
+			j := 0
+			if d.PeakSeries != nil {
+				j = d.PeakSeries[k]
+			}
+			if j < 0 || j >= len(d.Values) {
+				return nil, &SeriesError{Series: "indicator peak series", Index: k, Value: float64(j),
+					Problem: fmt.Sprintf("names no series (there are %d)", len(d.Values))}
+			}
+			var curve interp.PiecewiseLinear
+			if err := curve.Fit(freqHz, d.Values[j].Values[first:]); err != nil {
+				return nil, fmt.Errorf("plots: indicator singular value %q: %w", d.Values[j].Name, err)
+			}
 			if m.FreqHz >= freqHz[0] && m.FreqHz <= freqHz[len(freqHz)-1] {
-				pts = append(pts, plotter.XY{X: m.FreqHz, Y: largest.Predict(m.FreqHz)})
+				pts = append(pts, plotter.XY{X: m.FreqHz, Y: curve.Predict(m.FreqHz)})
 			}
 		}
 		if len(pts) > 0 {

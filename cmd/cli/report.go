@@ -128,6 +128,7 @@ func indicatorData(a *analysis) (*plots.IndicatorData, *plots.StabData) {
 	}
 	for _, q := range fit.Quick {
 		ind.Peaks = append(ind.Peaks, plots.Marker{Label: fmt.Sprintf("peak %.3f Hz", q.PeakHz), FreqHz: q.PeakHz})
+		ind.PeakSeries = append(ind.PeakSeries, q.Curve)
 	}
 	st := &plots.StabData{Selected: markers(a.result.Modes), IndicatorFreqHz: ind.FreqHz}
 	if len(ind.Values) > 0 {

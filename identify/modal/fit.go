@@ -194,10 +194,18 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 		return nil, err
 	}
 	res.Stabilisation = Stabilisation{MinOrder: 2, MaxOrder: reached, Points: pts}
-	var clusters []poleCluster
-	for _, c := range clusterPoles(pts) {
-		if len(c.members) >= minStableOrders {
-			clusters = append(clusters, c)
+	clusters := stableClusters(pts, PoleStable)
+	if len(clusters) < 2 {
+		// Heavily damped, close modes: the damping of one pole may wander by
+		// more than StabilityDampingTol from order to order while its
+		// frequency holds. Its frequency-stable poles start the refinement,
+		// which settles the damping.
+		if fc := stableClusters(pts, PoleFrequencyStable); len(fc) >= 2 {
+			clusters = fc
+			res.Warnings = append(res.Warnings, Warning{WarnFrequencyStableOnly, fmt.Sprintf(
+				"fewer than two poles in %.3g-%.3g Hz were stable in damping across model orders; the refinement "+
+					"started from poles stable in frequency only (%d and %d orders)", lo, hi,
+				len(fc[0].members), len(fc[1].members))})
 		}
 	}
 	if len(clusters) < 2 {
@@ -454,4 +462,16 @@ func qualityWarnings(res *Result) []Warning {
 		}
 	}
 	return w
+}
+
+// stableClusters returns the pole clusters of status least or better that
+// persist over at least minStableOrders orders.
+func stableClusters(pts []StabilisationPoint, least PoleStatus) []poleCluster {
+	var out []poleCluster
+	for _, c := range clusterPoles(pts, least) {
+		if len(c.members) >= minStableOrders {
+			out = append(out, c)
+		}
+	}
+	return out
 }

@@ -306,14 +306,16 @@ type poleCluster struct {
 	members []StabilisationPoint
 }
 
-// clusterPoles groups the stable physical poles: sorted by natural
-// frequency, a pole joins the current cluster when it lies within
-// 2*StabilityFrequencyTol of the cluster's last member. Clusters are
-// returned by decreasing size (number of orders at which the pole is stable).
-func clusterPoles(pts []StabilisationPoint) []poleCluster {
+// clusterPoles groups the physical poles whose status is at least least
+// (PoleStable, or PoleFrequencyStable to admit poles whose damping still
+// wanders between orders): sorted by natural frequency, a pole joins the
+// current cluster when it lies within 2*StabilityFrequencyTol of the
+// cluster's last member. Clusters are returned by decreasing size (number of
+// orders at which the pole is stable).
+func clusterPoles(pts []StabilisationPoint, least PoleStatus) []poleCluster {
 	var st []StabilisationPoint
 	for _, p := range pts {
-		if p.Physical && p.Status == PoleStable {
+		if p.Physical && p.Status >= least {
 			st = append(st, p)
 		}
 	}

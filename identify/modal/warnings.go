@@ -39,6 +39,9 @@ const (
 	WarnNotRankOne WarningCode = "not-rank-one"
 	// WarnSkippedBins: bins in the band with unusable data were left out.
 	WarnSkippedBins WarningCode = "skipped-bins"
+	// WarnFrequencyStableOnly: a body pole was stable across model orders in
+	// frequency but not in damping; the refinement started from it.
+	WarnFrequencyStableOnly WarningCode = "frequency-stable-only"
 )
 
 // Warning is a condition the user should know about, returned as data.

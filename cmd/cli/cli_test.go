@@ -102,6 +102,8 @@ func TestExitCodesAndNoLeftovers(t *testing.T) {
 		{[]string{"model", "--setup", exampleSetup, "--colour"}, exitUsage, "unknown flag"},
 		{[]string{"frobnicate"}, exitUsage, "unknown command"},
 		{[]string{"simulate", "--setup", exampleSetup, "--test", "crash", "--out", out}, exitUsage, "--test must be"},
+		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", out, "--rear-delay", "0.5"}, exitUsage, "does not apply to a rig test"},
+		{[]string{"simulate", "--setup", exampleSetup, "--test", "drop", "--out", out, "--drive", "sweep"}, exitUsage, "does not apply to a drop test"},
 		{[]string{"model", "--setup", bad}, exitData, "bad.toml:2: vehicle.mass_kg"},
 		{[]string{"model", "--setup", filepath.Join(dir, "missing.toml")}, exitData, "cannot read"},
 		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", out, "--rate", "-5"}, exitData, "sample rate"},

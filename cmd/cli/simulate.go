@@ -52,6 +52,9 @@ byte for byte. Synthetic logs are not measurements.
 			if sameFile(outPath, setupPath) {
 				return usageError{fmt.Errorf("--out %s would overwrite the setup file", outPath)}
 			}
+			if err := testOnlyFlags(cmd, test); err != nil {
+				return err
+			}
 			v := compare.DesignOf(setup.Vehicle)
 			var log *simulate.Log
 			switch test {
@@ -107,4 +110,25 @@ byte for byte. Synthetic logs are not measurements.
 	cmd.MarkFlagFilename("out", "csv")
 	cmd.RegisterFlagCompletionFunc("test", cobra.FixedCompletions([]string{"rig", "drop"}, cobra.ShellCompDirectiveNoFileComp))
 	return cmd
+}
+
+// Flags that belong to one kind of test only.
+var (
+	rigOnlyFlags  = []string{"drive", "band-low", "band-high", "drive-rms", "road-speed"}
+	dropOnlyFlags = []string{"drop-height", "pre-trigger", "rear-delay"}
+)
+
+// testOnlyFlags refuses a flag given for the other kind of test, which would
+// otherwise be ignored without a word.
+func testOnlyFlags(cmd *cobra.Command, test string) error {
+	other := dropOnlyFlags
+	if test == "drop" {
+		other = rigOnlyFlags
+	}
+	for _, name := range other {
+		if cmd.Flags().Changed(name) {
+			return usageError{fmt.Errorf("--%s does not apply to a %s test (see %s --help)", name, test, cmd.CommandPath())}
+		}
+	}
+	return nil
 }

@@ -106,6 +106,9 @@ func runAnalyze(logPath string, af *analyzeFlags, out io.Writer) (*analysis, boo
 	if af.event < 0 {
 		return nil, false, usageError{errors.New("--event counts releases from 0")}
 	}
+	if af.event != 0 && len(setup.Inputs) > 0 {
+		return nil, false, usageError{errors.New("--event chooses a release in a drop test; this setup has rig inputs")}
+	}
 	if af.maxOrder == 0 {
 		af.maxOrder = setup.Analysis.MaxModelOrder
 	}

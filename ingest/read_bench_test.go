@@ -122,21 +122,7 @@ func BenchmarkParseOurs(b *testing.B) {
 	runtime.ReadMemStats(&m0)
 	b.ResetTimer()
 	for range b.N {
-		r, err := NewReader(bytes.NewReader(data), "bench.csv", int64(len(data)), Options{})
-		if err != nil {
-			b.Fatal(err)
-		}
-		var sink float64
-		sum, err := r.Stream(func(blk Block) error {
-			sink += blk.Data[0][0]
-			return nil
-		})
-		if err != nil {
-			b.Fatal(err)
-		}
-		if sum.Rows != rows {
-			b.Fatalf("rows %d, want %d", sum.Rows, rows)
-		}
+		parseOurs(b, data, rows)
 	}
 	b.StopTimer()
 	runtime.ReadMemStats(&m1)

@@ -147,6 +147,20 @@ func TestDropLogMatchesAnalyticFreeResponse(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	matchDrop(t, log, o, "analytic", func(sM, tS float64) float64 {
+		if tS < 0 {
+			return 0
+		}
+		_, acc := fr.At(tS)
+		return acc[0] - sM*acc[1]
+	})
+}
+
+// matchDrop checks every sample of a drop log against want(s, t), the
+// acceleration at sensor position s and time t from the release, to
+// decayTol of each channel's peak.
+func matchDrop(t *testing.T, log *Log, o Options, what string, want func(sM, tS float64) float64) {
+	t.Helper()
 	i0 := int(math.Round(o.PreTriggerS * o.RateHz))
 	for si, s := range testSensors {
 		data := log.Columns[si].Data
@@ -155,13 +169,8 @@ func TestDropLogMatchesAnalyticFreeResponse(t *testing.T) {
 			peak = math.Max(peak, math.Abs(v))
 		}
 		for i, v := range data {
-			want := 0.0
-			if i >= i0 {
-				_, acc := fr.At(float64(i-i0) / o.RateHz)
-				want = acc[0] - s.XM*acc[1]
-			}
-			if math.Abs(v-want) > decayTol*peak {
-				t.Fatalf("sensor %s sample %d: %.12g, analytic %.12g", s.Channel, i, v, want)
+			if w := want(s.XM, float64(i-i0)/o.RateHz); math.Abs(v-w) > decayTol*peak {
+				t.Fatalf("rear delay %g s, sensor %s sample %d: %.12g, %s %.12g", o.RearDelayS, s.Channel, i, v, what, w)
 			}
 		}
 	}
@@ -318,29 +327,18 @@ func TestRollOffDropMatchesSuperposedStepResponses(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		i0 := int(math.Round(o.PreTriggerS * o.RateHz))
-		for si, s := range testSensors {
-			data := log.Columns[si].Data
-			peak := 0.0
-			for _, v := range data {
-				peak = math.Max(peak, math.Abs(v))
+		matchDrop(t, log, o, "superposition", func(sM, tS float64) float64 {
+			w := 0.0
+			if tS >= 0 {
+				_, acc := front.At(tS)
+				w = acc[0] - sM*acc[1]
 			}
-			for i, v := range data {
-				want := 0.0
-				tS := float64(i-i0) / o.RateHz
-				if i >= i0 {
-					_, acc := front.At(tS)
-					want = acc[0] - s.XM*acc[1]
-				}
-				if tS >= delay {
-					_, acc := rear.At(tS - delay)
-					want += acc[0] - s.XM*acc[1]
-				}
-				if math.Abs(v-want) > decayTol*peak {
-					t.Fatalf("delay %g s, sensor %s sample %d: %.12g, superposition %.12g", delay, s.Channel, i, v, want)
-				}
+			if tS >= delay {
+				_, acc := rear.At(tS - delay)
+				w += acc[0] - sM*acc[1]
 			}
-		}
+			return w
+		})
 	}
 }
 

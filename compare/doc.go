@@ -4,20 +4,15 @@
 // effective ride rates and damping, and the checks against targets and ride
 // guidance.
 //
-// # Axes and signs (fixed here for the whole module)
+// # Axes and signs
 //
-// Body axes follow ISO 8855: x forward, y left, z up. z is the vertical
-// displacement of the centre of gravity (CG), positive up, in m; theta is the
-// pitch angle about y, positive nose-down (right-hand rule about y), in rad.
-// A longitudinal position s is measured from the CG, positive forward, in m.
-// The vertical motion of the body at s is
-//
-//	w(s) = z - s*theta
-//
-// The front axle is at s = +a and the rear axle at s = -b; L = a + b is the
-// wheelbase. Rates (N/m) and damping (N s/m) are per axle (both wheels
-// together), vertical, at the wheel centre: the effective ride rate that the
-// body sees.
+// Those fixed for the whole module by package identify/body (ISO 8855): z up
+// at the centre of gravity (CG), in m; pitch theta about y, positive
+// nose-down, in rad; s positive forward of the CG, in m; the vertical motion
+// of the body at s is w(s) = z - s*theta. The front axle is at s = +a and the
+// rear axle at s = -b; L = a + b is the wheelbase. Rates (N/m) and damping
+// (N s/m) are per axle (both wheels together), vertical, at the wheel
+// centre: the effective ride rate that the body sees.
 //
 // # The model
 //
@@ -32,12 +27,8 @@
 //
 // # Modes
 //
-// A damped mode is a complex pole lambda with its shape (z, theta) scaled so
-// that z = 1. natural_frequency_hz is |lambda|/(2 pi), damped_frequency_hz is
-// Im(lambda)/(2 pi), damping_ratio is -Re(lambda)/|lambda|. Pitch per bounce
-// is Re(theta/z) in rad/m and the node is the position z/theta where w
-// vanishes. Of the two body modes, the one whose node lies farther from the CG
-// is labelled bounce, the other pitch. Kinematics (heave and pitch from a shape
-// at body sensors), NodeM and BodyLabels implement these rules for every
-// package that identifies modes, and MAC compares shapes.
+// Modal quantities (natural and damped frequency, damping ratio, pitch per
+// bounce, node) and the labels bounce and pitch are those defined by package
+// identify/body, which implements them (NodeM, BodyLabels) for the model and
+// for every route that identifies modes, and compares shapes (MAC).
 package compare

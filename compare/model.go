@@ -8,6 +8,8 @@ import (
 	"sort"
 
 	"gonum.org/v1/gonum/mat"
+
+	"github.com/ridemodes/ridemodes/identify/body"
 )
 
 // Vehicle is the design model of the sprung body: a rigid body of mass m and
@@ -79,7 +81,8 @@ func (v Vehicle) Damping() [2][2]float64 {
 	return v.axleMatrix(v.FrontDampingNsPerM, v.RearDampingNsPerM)
 }
 
-// Mode is one body mode of the model or of a measurement.
+// Mode is one body mode of the design model (a measured mode is a
+// body.Mode of package identify/body).
 type Mode struct {
 	Label string // "bounce" or "pitch"
 	// Pole is the eigenvalue lambda in rad/s (purely imaginary when undamped).
@@ -119,7 +122,7 @@ func newMode(pole complex128, z, theta complex128, lref float64) Mode {
 		r := theta / z
 		m.Shape = [2]complex128{1, r}
 		m.PitchPerBounceRadPerM = real(r)
-		m.NodeM = NodeM(real(r), lref)
+		m.NodeM = body.NodeM(real(r), lref)
 	default:
 		m.Shape = [2]complex128{z / theta, 1}
 		m.PitchPerBounceRadPerM = math.NaN()
@@ -128,10 +131,10 @@ func newMode(pole complex128, z, theta complex128, lref float64) Mode {
 	return m
 }
 
-// labelModes sorts the two modes by natural frequency and labels them (BodyLabels).
+// labelModes sorts the two modes by natural frequency and labels them (body.BodyLabels).
 func labelModes(ms []Mode) {
 	sort.Slice(ms, func(i, j int) bool { return ms[i].NaturalFrequencyHz < ms[j].NaturalFrequencyHz })
-	ms[0].Label, ms[1].Label = BodyLabels(ms[0].NodeM, ms[1].NodeM)
+	ms[0].Label, ms[1].Label = body.BodyLabels(ms[0].NodeM, ms[1].NodeM)
 }
 
 // UndampedModes returns the two modes of the undamped model (damping

@@ -4,7 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"math/cmplx"
+
+	"github.com/ridemodes/ridemodes/identify/body"
 )
 
 // MeasuredMode is one identified body mode, from whatever test (rig or drop)
@@ -102,39 +103,14 @@ func MeasuredFromJSON(ms []ModeJSON) ([]MeasuredMode, error) {
 	return out, nil
 }
 
-// MAC returns the modal assurance criterion of two complex shape vectors of
-// the same length: |a^H b|^2 / ((a^H a)(b^H b)), from 0 (unrelated) to 1
-// (the same shape up to scale and phase). It is NaN when a vector vanishes.
-//
-// References: R. J. Allemang and D. L. Brown, "A correlation coefficient for
-// modal vector analysis", Proc. 1st International Modal Analysis Conference
-// (IMAC), Orlando, 1982, pp. 110-116.
-func MAC(a, b []complex128) float64 {
-	if len(a) != len(b) {
-		panic("compare: MAC of shape vectors of different lengths")
-	}
-	var ab complex128
-	var aa, bb float64
-	for i := range a {
-		ab += cmplx.Conj(a[i]) * b[i]
-		aa += real(cmplx.Conj(a[i]) * a[i])
-		bb += real(cmplx.Conj(b[i]) * b[i])
-	}
-	if aa == 0 || bb == 0 {
-		return math.NaN()
-	}
-	n := cmplx.Abs(ab)
-	return n * n / (aa * bb)
-}
-
 // shapeVectors returns the measured and the model shape of a mode at the
 // same positions: the measured sensor shape when there is one, otherwise
 // (z, theta) = (1, pitch per bounce) evaluated as w(s) = z - s theta at
-// sensorsXM (at the axles, +a and -b of the model's body, when sensorsXM is
+// sensorsXM (at the axles, +a and -b of the model car, when sensorsXM is
 // empty). ok is false when the mode has no measured shape.
-func shapeVectors(meas MeasuredMode, model Mode, sensorsXM []float64, body Vehicle) (mv, pv []complex128, ok bool) {
+func shapeVectors(meas MeasuredMode, model Mode, sensorsXM []float64, car Vehicle) (mv, pv []complex128, ok bool) {
 	if len(sensorsXM) == 0 {
-		sensorsXM = []float64{body.CGToFrontM, -body.CGToRearM}
+		sensorsXM = []float64{car.CGToFrontM, -car.CGToRearM}
 	}
 	switch {
 	case len(meas.Shape) > 0:
@@ -156,14 +132,14 @@ func shapeVectors(meas MeasuredMode, model Mode, sensorsXM []float64, body Vehic
 
 // macMatrix returns MAC[i][j] between measured mode i and model mode j (NaN
 // without a measured shape).
-func macMatrix(meas []MeasuredMode, model []Mode, sensorsXM []float64, body Vehicle) [][]float64 {
+func macMatrix(meas []MeasuredMode, model []Mode, sensorsXM []float64, car Vehicle) [][]float64 {
 	out := make([][]float64, len(meas))
 	for i, mm := range meas {
 		out[i] = make([]float64, len(model))
 		for j, pm := range model {
 			out[i][j] = math.NaN()
-			if mv, pv, ok := shapeVectors(mm, pm, sensorsXM, body); ok {
-				out[i][j] = MAC(mv, pv)
+			if mv, pv, ok := shapeVectors(mm, pm, sensorsXM, car); ok {
+				out[i][j] = body.MAC(mv, pv)
 			}
 		}
 	}
@@ -243,13 +219,13 @@ func Compare(measured []MeasuredMode, design Vehicle, sensorsXM []float64) ([]Co
 	return out, warns, nil
 }
 
-// ChooseRoot picks, among candidate rate sets for body, the one whose model
+// ChooseRoot picks, among candidate rate sets for car, the one whose model
 // reproduces the measured mode shapes best: the largest sum of MAC over the
 // two modes (paired by frequency order, the only order that both roots
 // share). Without any measured shape it picks the candidate closest to the
 // design rates (in the sum of squared log ratios of the rates) and says so.
 // The reason says how the choice was made.
-func ChooseRoot(body Vehicle, cands []Rates, measured []MeasuredMode, sensorsXM []float64, design Rates) (int, string, error) {
+func ChooseRoot(car Vehicle, cands []Rates, measured []MeasuredMode, sensorsXM []float64, design Rates) (int, string, error) {
 	if len(cands) == 0 {
 		return 0, "", errors.New("compare: no candidate rates to choose from")
 	}
@@ -272,14 +248,14 @@ func ChooseRoot(body Vehicle, cands []Rates, measured []MeasuredMode, sensorsXM 
 	}
 	best, bestScore := -1, math.Inf(-1)
 	for i, c := range cands {
-		ms, err := body.WithRates(c).Modes()
+		ms, err := car.WithRates(c).Modes()
 		if err != nil {
 			continue
 		}
 		score := 0.0
 		for k, mm := range byFreq {
-			if mv, pv, ok := shapeVectors(mm, ms[k], sensorsXM, body); ok {
-				if mac := MAC(mv, pv); !math.IsNaN(mac) {
+			if mv, pv, ok := shapeVectors(mm, ms[k], sensorsXM, car); ok {
+				if mac := body.MAC(mv, pv); !math.IsNaN(mac) {
 					score += mac
 				}
 			}

@@ -9,11 +9,16 @@
 //   - decay: release detection and the multi-output free-decay fit (drop
 //     tests).
 //
+// Both routes return the measured modes of package body (body.Mode), sorted,
+// labelled and given their node's uncertainty by one rule
+// (body.SortAndLabel); body also holds the kinematics from sensors to heave
+// and pitch, and MAC.
+//
 // This package holds the glue that a command needs: an FRF stage that takes
 // the blocks of an ingest stream, combines the pans of one axle, decimates
 // and accumulates in constant memory, and hands the FRFs on.
 //
 // Conventions: SI units; frequencies in Hz; harmonic quantities in the
 // e^{+i omega t} convention; body positions s from the CG, positive forward
-// (package compare fixes the axes).
+// (package identify/body fixes the axes).
 package identify

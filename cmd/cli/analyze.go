@@ -11,6 +11,7 @@ import (
 
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/identify"
+	"github.com/ridemodes/ridemodes/identify/body"
 	"github.com/ridemodes/ridemodes/identify/decay"
 	"github.com/ridemodes/ridemodes/identify/modal"
 	"github.com/ridemodes/ridemodes/ingest"
@@ -241,9 +242,7 @@ func analyzeRig(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (i
 	method := fmt.Sprintf("rig: %s FRFs, common-pole rational fraction polynomial fit (order %d) refined by weighted least squares",
 		frf.FRF.Method, fit.Order)
 	for _, m := range fit.Modes {
-		res.Modes = append(res.Modes, measuredJSON(m.Label, m.NaturalFrequencyHz, m.DampedFrequencyHz, m.DampingRatio,
-			m.PitchPerBounceRadPerM, m.NodeM, [4]float64{m.SD.NaturalFrequencyHz, m.SD.DampingRatio,
-				m.SD.PitchPerBounceRadPerM, m.SD.NodeM}, m.Shape, pos, method))
+		res.Modes = append(res.Modes, measuredJSON(m, pos, method))
 	}
 	return sum, nil
 }
@@ -284,23 +283,21 @@ func analyzeDrop(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (
 	method := fmt.Sprintf("drop: free decay from %.2f s to %.2f s, eigensystem realization (order %d) refined by least squares",
 		fit.WindowStartS, fit.WindowEndS, fit.Order)
 	for _, m := range fit.Modes {
-		res.Modes = append(res.Modes, measuredJSON(m.Label, m.NaturalFrequencyHz, m.DampedFrequencyHz, m.DampingRatio,
-			m.PitchPerBounceRadPerM, m.NodeM, [4]float64{m.Sigma.NaturalFrequencyHz, m.Sigma.DampingRatio,
-				m.Sigma.PitchPerBounceRadPerM, m.Sigma.NodeM}, m.ShapeAtSensors, pos, method))
+		res.Modes = append(res.Modes, measuredJSON(m, pos, method))
 	}
 	return log.Summary, nil
 }
 
-// measuredJSON writes one identified mode in the contract's form; sd holds
-// the standard deviations of fn, zeta, pitch per bounce and node.
-func measuredJSON(label string, fnHz, fdHz, zeta, ppb, nodeM float64, sd [4]float64, shape []complex128,
-	posM []float64, method string) compare.ModeJSON {
-	m := compare.ModeJSON{Label: label, NaturalFrequencyHz: fnHz, NaturalFrequencyRadPerS: 2 * math.Pi * fnHz,
-		DampedFrequencyHz: fdHz, DampingRatio: zeta, PitchPerBounceRadPerM: compare.Finite(ppb), NodeM: compare.Finite(nodeM),
-		Method: method,
-		Uncertainty: &compare.Uncertainty{NaturalFrequencyHz: sd[0], DampingRatio: sd[1],
-			PitchPerBounceRadPerM: compare.Finite(sd[2]), NodeM: compare.Finite(sd[3])}}
-	for i, w := range shape {
+// measuredJSON writes one identified mode, of either route, in the
+// contract's form; posM are the sensors' positions.
+func measuredJSON(md body.Mode, posM []float64, method string) compare.ModeJSON {
+	m := compare.ModeJSON{Label: md.Label, NaturalFrequencyHz: md.NaturalFrequencyHz,
+		NaturalFrequencyRadPerS: 2 * math.Pi * md.NaturalFrequencyHz, DampedFrequencyHz: md.DampedFrequencyHz,
+		DampingRatio: md.DampingRatio, PitchPerBounceRadPerM: compare.Finite(md.PitchPerBounceRadPerM),
+		NodeM: compare.Finite(md.NodeM), Method: method,
+		Uncertainty: &compare.Uncertainty{NaturalFrequencyHz: md.SD.NaturalFrequencyHz, DampingRatio: md.SD.DampingRatio,
+			PitchPerBounceRadPerM: compare.Finite(md.SD.PitchPerBounceRadPerM), NodeM: compare.Finite(md.SD.NodeM)}}
+	for i, w := range md.Shape {
 		m.SensorShape = append(m.SensorShape, compare.SensorShapeJSON{XM: posM[i], Re: real(w), Im: imag(w)})
 	}
 	return m

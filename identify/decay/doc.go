@@ -8,7 +8,7 @@
 // SI units: times in s, frequencies in Hz at the interface (rad/s inside),
 // positions in m, pitch in rad. Accelerations may be in any unit (the fit
 // is linear in them); noise and offsets are reported in the log's unit.
-// Axes and signs are those of package compare (ISO 8855): z up, pitch theta
+// Axes and signs are those of package identify/body (ISO 8855): z up, pitch theta
 // positive nose-down, s positive forward of the CG, w(s) = z - s*theta. A
 // stable pole lambda has Re(lambda) < 0; of each conjugate pair the one with
 // Im(lambda) > 0 is reported. natural_frequency_hz is |lambda|/(2 pi),
@@ -53,8 +53,9 @@
 //  5. takes the shapes at the sensors from the fitted amplitudes, heave and
 //     pitch by least squares on w(s_k) = z - s_k theta (for two sensors
 //     theta = (w1 - w2)/(s2 - s1), z = (s2 w1 - s1 w2)/(s2 - s1)), pitch per
-//     bounce Re(theta/z), node 1/Re(theta/z), and labels the mode whose node
-//     lies farther from the CG bounce; the MAC of the two shapes and the
+//     bounce Re(theta/z), node 1/Re(theta/z), and sorts and labels the modes
+//     as every route does (body.SortAndLabel: the mode whose node lies
+//     farther from the CG is bounce); the MAC of the two shapes and the
 //     normalised residual say how distinct the modes are and how well the
 //     model fits;
 //  6. gives standard deviations from kappa s^2 (J^T J)^-1 (s^2 the residual
@@ -63,9 +64,11 @@
 //     for taps h and factor q is the ratio of the filtered noise density at
 //     the body modes to that of white noise of the same variance, so the N
 //     fitted samples count as N/kappa independent ones (kappa = 1 without
-//     decimation; 1.04 for the default filter). The node's sigma is
-//     sigma_ppb/ppb^2 and is +Inf when the pitch per bounce is within two of
-//     its sigmas of zero (the node may lie at infinity);
+//     decimation; 1.04 for the default filter). The shape at each sensor
+//     gets sigmas of its real and imaginary parts. The node's sigma is
+//     sigma_ppb/ppb^2, and NaN (undetermined, null in the result) when the
+//     pitch per bounce is within two of its sigmas of zero (the node may lie
+//     at infinity; body.SortAndLabel);
 //  7. computes the one-mode logarithmic decrement per channel as a quick
 //     estimate, flagged invalid when the fitted modes' half-power bands
 //     overlap.
@@ -77,9 +80,11 @@
 // the axles, 2 % noise of each channel's peak, DC offsets, 100-1000 Hz,
 // default options) both modes are found in every case, and the stated sigmas
 // cover the errors: 95 % of the errors in frequency, damping ratio, pitch
-// per bounce and node lie within 2 sigma (22 nodes with an infinite sigma
-// left out), none of the first three beyond 4 sigma; a 40-run Monte Carlo per rate gives 90-100 % within 2 sigma and an
-// RMS error of 0.8-1.2 sigma. The accuracy itself is set by how strongly the
+// per bounce and node lie within 2 sigma (22 undetermined nodes left out),
+// none of the first three beyond 4 sigma; a 40-run Monte Carlo per rate
+// gives 90-100 % within 2 sigma and an RMS error of 0.8-1.2 sigma, and
+// 93-98 % of the errors in the shape at the sensors (real and imaginary
+// parts) within 2 sigma. The accuracy itself is set by how strongly the
 // drop excites each mode. A drop of both axles at once excites the
 // pitch-like mode weakly on many cars; in 15 of the 48 modes its initial
 // amplitude is under a quarter of the channel peak (under 12 noise sd).
@@ -147,7 +152,7 @@
 //     energy between them: sigmas of 5-15 % in frequency. More sensors or a
 //     second drop (fit each, average) help.
 //   - The node's sigma is linearised through 1/ppb: for a nearly pure
-//     bounce it is only a guide (hence +Inf near ppb = 0).
+//     bounce it is only a guide (hence undetermined near ppb = 0).
 //   - The model is two modes: wheel hop, tyre or bump-stop contact inside
 //     the window, or a non-linear damper, show up as a poor fit
 //     (WarnPoorFit); raise SettleS. The noise estimate assumes the log is at
@@ -166,7 +171,7 @@
 //     identify/lsq).
 //   - R. J. Allemang and D. L. Brown, "A correlation coefficient for modal
 //     vector analysis", Proc. IMAC I, Orlando, 1982, pp. 110-116 (MAC, via
-//     compare.MAC).
+//     body.MAC).
 //   - J. F. Kaiser, Proc. IEEE ISCAS 1974, pp. 20-23 (the anti-alias window,
 //     in package spectral).
 //   - The logarithmic decrement of a one-degree-of-freedom free vibration,

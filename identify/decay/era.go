@@ -7,7 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
-	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/identify/body"
 )
 
 // Stabilisation criteria between consecutive ERA orders, and grouping of
@@ -145,7 +145,7 @@ func eraSweep(y [][]float64, dtS float64, es eraSetup, maxOrder int, loHz, hiHz 
 			for _, q := range prev {
 				if math.Abs(q.NaturalFrequencyHz-fn) < stableFreqTol*fn &&
 					math.Abs(q.DampingRatio-zeta) < stableDampTol*zeta &&
-					compare.MAC(q.shape, shape) > stableMACMin {
+					body.MAC(q.shape, shape) > stableMACMin {
 					p.Stable = true
 					break
 				}

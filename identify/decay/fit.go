@@ -9,7 +9,7 @@ import (
 	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 
-	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/identify/body"
 	"github.com/ridemodes/ridemodes/identify/lsq"
 	"github.com/ridemodes/ridemodes/identify/spectral"
 )
@@ -83,34 +83,6 @@ func (o Options) withDefaults() Options {
 	return o
 }
 
-// Sigma holds one standard deviation of each modal value.
-type Sigma struct {
-	NaturalFrequencyHz    float64
-	DampedFrequencyHz     float64
-	DampingRatio          float64
-	PitchPerBounceRadPerM float64
-	NodeM                 float64
-}
-
-// Mode is one fitted body mode.
-type Mode struct {
-	Label              string     // "bounce" or "pitch"
-	Pole               complex128 // lambda [rad/s]
-	NaturalFrequencyHz float64    // |lambda|/(2 pi)
-	DampedFrequencyHz  float64    // Im(lambda)/(2 pi)
-	DampingRatio       float64    // -Re(lambda)/|lambda|
-	// PitchPerBounceRadPerM is Re(theta/z); NodeM is 1/Re(theta/z) (NaN
-	// when the pitch is negligible).
-	PitchPerBounceRadPerM float64
-	NodeM                 float64
-	// HeaveAndPitch is the shape (z, theta) in (m, rad), scaled to z = 1.
-	HeaveAndPitch [2]complex128
-	// ShapeAtSensors is the fitted complex amplitude of the mode at each
-	// sensor, scaled so that z = 1 (w(s_k) = z - s_k theta).
-	ShapeAtSensors []complex128
-	Sigma          Sigma
-}
-
 // Curves are the measured and fitted signals over the fit window, for a
 // plot: decimated, in the log's units, at the log's times.
 type Curves struct {
@@ -159,7 +131,9 @@ type Result struct {
 	// NoiseInflation is the factor applied to the residual variance for the
 	// correlation of the filtered noise (1 without decimation); see Fit.
 	NoiseInflation float64
-	Modes          []Mode // bounce and pitch, sorted by natural frequency
+	// Modes are bounce and pitch, sorted by natural frequency and labelled
+	// (body.SortAndLabel); RankOneRatio is 0 (no measured input).
+	Modes []body.Mode
 	// MAC is the modal assurance criterion of the two modes' sensor shapes.
 	MAC float64
 	// NormalisedResidual is sqrt(sum of squared residuals / sum of squared
@@ -318,8 +292,8 @@ func Fit(rateHz float64, channels [][]float64, posM []float64, opt Options) (*Re
 	if err != nil {
 		return nil, err
 	}
-	res.Modes = modesWithSigma(m, p, cov, posM)
-	res.MAC = compare.MAC(res.Modes[0].ShapeAtSensors, res.Modes[1].ShapeAtSensors)
+	res.Modes = modesWithSD(m, p, cov, posM)
+	res.MAC = body.MAC(res.Modes[0].Shape, res.Modes[1].Shape)
 	fillCurves(res, m, p, dec, ev)
 	res.LogDecrement = make([]LogDecrement, len(channels))
 	for c := range channels {
@@ -420,20 +394,20 @@ func (d decimated) shortError(event, need int) error {
 		EventIndex: event}
 }
 
-// modesWithSigma builds the modes from the refined parameters and their
+// modesWithSD builds the modes from the refined parameters and their
 // covariance (delta method), with heave and pitch by the sensors'
-// kinematics (compare.Kinematics), sorts them by frequency and labels them
-// (compare.BodyLabels).
-func modesWithSigma(m expModel, p []float64, cov *mat.SymDense, posM []float64) []Mode {
+// kinematics (body.Kinematics), sorts them by frequency and labels them
+// (body.SortAndLabel).
+func modesWithSD(m expModel, p []float64, cov *mat.SymDense, posM []float64) []body.Mode {
 	nch := m.nch()
-	kin := compare.NewKinematics(posM)
+	kin := body.NewKinematics(posM)
 	np := m.params()
-	ms := make([]Mode, m.modes)
+	ms := make([]body.Mode, m.modes)
 	for r := range ms {
 		lam := m.pole(p, r)
 		w := cmplx.Abs(lam)
 		sig, om := -real(lam), imag(lam)
-		md := Mode{Pole: lam, NaturalFrequencyHz: w / (2 * math.Pi), DampedFrequencyHz: om / (2 * math.Pi),
+		md := body.Mode{Pole: lam, NaturalFrequencyHz: w / (2 * math.Pi), DampedFrequencyHz: om / (2 * math.Pi),
 			DampingRatio: sig / w}
 		psi := make([]complex128, nch)
 		for c := range psi {
@@ -441,14 +415,18 @@ func modesWithSigma(m expModel, p []float64, cov *mat.SymDense, posM []float64) 
 		}
 		z, th := kin.HeavePitch(psi)
 		md.HeaveAndPitch = [2]complex128{1, th / z}
-		md.ShapeAtSensors = make([]complex128, nch)
+		md.Shape = make([]complex128, nch)
 		for c := range psi {
-			md.ShapeAtSensors[c] = psi[c] / z
+			md.Shape[c] = psi[c] / z
 		}
 		ppb := real(th / z)
 		md.PitchPerBounceRadPerM = ppb
 		md.NodeM = kin.NodeM(ppb)
-		// Gradients with respect to the parameter vector.
+		// Gradients with respect to the parameter vector. An amplitude
+		// psi_c = (a - i b)/2 of the parameters a, b enters a holomorphic
+		// function f of the amplitudes with d Re f/da = Re f'/2,
+		// d Re f/db = Im f'/2, d Im f/da = Im f'/2, d Im f/db = -Re f'/2,
+		// f' = df/dpsi_c.
 		gf := make([]float64, np)
 		gz := make([]float64, np)
 		gd := make([]float64, np)
@@ -457,36 +435,38 @@ func modesWithSigma(m expModel, p []float64, cov *mat.SymDense, posM []float64) 
 		gz[2*r], gz[2*r+1] = om*om/(w*w*w), -sig*om/(w*w*w)
 		gd[2*r+1] = 1 / (2 * math.Pi)
 		for c := range psi {
-			// d(theta/z)/d psi_c, with psi_c = (a - i b)/2.
+			// d(theta/z)/d psi_c.
 			dr := (complex(kin.ThetaWeights[c], 0)*z - th*complex(kin.ZWeights[c], 0)) / (z * z)
 			i := m.ampIndex(r, c)
 			gp[i], gp[i+1] = real(dr)/2, imag(dr)/2
 		}
-		md.Sigma = Sigma{
+		md.SD = body.SD{
 			NaturalFrequencyHz:    quadSD(gf, cov),
 			DampedFrequencyHz:     quadSD(gd, cov),
 			DampingRatio:          quadSD(gz, cov),
 			PitchPerBounceRadPerM: quadSD(gp, cov),
 			NodeM:                 quadSD(gp, cov) / (ppb * ppb),
 		}
-		if math.Abs(ppb) <= nodeDefinedSigmas*md.Sigma.PitchPerBounceRadPerM {
-			// The pitch may be zero within its uncertainty: the node may lie
-			// at infinity and the linearised sigma means nothing.
-			md.Sigma.NodeM = math.Inf(1)
+		gRe, gIm := make([]float64, np), make([]float64, np)
+		for k := range psi {
+			for c := range psi {
+				// d(psi_k/z)/d psi_c = (delta_kc - Shape[k] ZWeights[c])/z.
+				d := -md.Shape[k] * complex(kin.ZWeights[c], 0) / z
+				if c == k {
+					d += 1 / z
+				}
+				i := m.ampIndex(r, c)
+				gRe[i], gRe[i+1] = real(d)/2, imag(d)/2
+				gIm[i], gIm[i+1] = imag(d)/2, -real(d)/2
+			}
+			md.SD.ShapeRe = append(md.SD.ShapeRe, quadSD(gRe, cov))
+			md.SD.ShapeIm = append(md.SD.ShapeIm, quadSD(gIm, cov))
 		}
 		ms[r] = md
 	}
-	if ms[1].NaturalFrequencyHz < ms[0].NaturalFrequencyHz {
-		ms[0], ms[1] = ms[1], ms[0]
-	}
-	ms[0].Label, ms[1].Label = compare.BodyLabels(ms[0].NodeM, ms[1].NodeM)
+	body.SortAndLabel(ms)
 	return ms
 }
-
-// nodeDefinedSigmas: the node's standard deviation is given only when the
-// pitch per bounce differs from zero by more than this many of its own
-// standard deviations; otherwise it is +Inf (the node is undetermined).
-const nodeDefinedSigmas = 2
 
 // quadSD returns sqrt(g^T C g).
 func quadSD(g []float64, cov *mat.SymDense) float64 {
@@ -551,15 +531,15 @@ func qualityWarnings(res *Result, opt Options, ev Event, dec decimated) []Warnin
 				"%s at %.3g Hz lies near the band edge (%.3g-%.3g Hz); widen the band to check it",
 				md.Label, f, opt.BandLowHz, opt.BandHighHz)})
 		}
-		if math.IsInf(md.Sigma.NodeM, 1) {
+		if md.NodeUndetermined() {
 			ws = append(ws, Warning{WarnUncertain, fmt.Sprintf(
 				"%s: pitch per bounce %.3g +- %.2g rad/m is zero within %d sd; the node is undetermined",
-				md.Label, md.PitchPerBounceRadPerM, md.Sigma.PitchPerBounceRadPerM, nodeDefinedSigmas)})
+				md.Label, md.PitchPerBounceRadPerM, md.SD.PitchPerBounceRadPerM, body.NodeDeterminedSDs)})
 		}
-		if md.Sigma.NaturalFrequencyHz > uncertainFraction*f || md.Sigma.DampingRatio > uncertainFraction {
+		if md.SD.NaturalFrequencyHz > uncertainFraction*f || md.SD.DampingRatio > uncertainFraction {
 			ws = append(ws, Warning{WarnUncertain, fmt.Sprintf(
 				"%s: natural frequency %.3g +- %.2g Hz, damping ratio %.3f +- %.3f; a higher drop or a second "+
-					"drop would firm it up", md.Label, f, md.Sigma.NaturalFrequencyHz, md.DampingRatio, md.Sigma.DampingRatio)})
+					"drop would firm it up", md.Label, f, md.SD.NaturalFrequencyHz, md.DampingRatio, md.SD.DampingRatio)})
 		}
 	}
 	return ws

@@ -44,9 +44,10 @@ type modeError struct {
 	rateHz                    float64
 	label                     string
 	share                     float64
-	freqRel, zetaAbs, ppbAbs  float64 // errors
-	nodeRel                   float64 // NaN when the true node is beyond a wheelbase
-	zFreq, zZeta, zPPB, zNode float64 // errors over sigmas
+	freqRel, zetaAbs, ppbAbs  float64   // errors
+	nodeRel                   float64   // NaN when the true node is beyond a wheelbase
+	zFreq, zZeta, zPPB, zNode float64   // errors over sigmas (zNode NaN when the node is undetermined)
+	zShape                    []float64 // of the shape at each sensor, real and imaginary parts
 	wheelbaseM                float64
 }
 
@@ -79,10 +80,14 @@ func runCase(t testing.TB, s scenario) ([]modeError, *Result) {
 			ppbAbs:     md.PitchPerBounceRadPerM - tr.PitchPerBounceRadPerM,
 			nodeRel:    math.NaN(),
 			wheelbaseM: s.car.WheelbaseM()}
-		e.zFreq = (md.NaturalFrequencyHz - tr.NaturalFrequencyHz) / md.Sigma.NaturalFrequencyHz
-		e.zZeta = e.zetaAbs / md.Sigma.DampingRatio
-		e.zPPB = e.ppbAbs / md.Sigma.PitchPerBounceRadPerM
-		e.zNode = (md.NodeM - tr.NodeM) / md.Sigma.NodeM // 0 when the node is undetermined (sigma +Inf)
+		e.zFreq = (md.NaturalFrequencyHz - tr.NaturalFrequencyHz) / md.SD.NaturalFrequencyHz
+		e.zZeta = e.zetaAbs / md.SD.DampingRatio
+		e.zPPB = e.ppbAbs / md.SD.PitchPerBounceRadPerM
+		e.zNode = (md.NodeM - tr.NodeM) / md.SD.NodeM
+		for k, w := range md.Shape {
+			d := w - tr.ShapeAt(pos[k]) // both scaled to z = 1
+			e.zShape = append(e.zShape, real(d)/md.SD.ShapeRe[k], imag(d)/md.SD.ShapeIm[k])
+		}
 		if math.Abs(tr.NodeM) <= e.wheelbaseM {
 			e.nodeRel = md.NodeM/tr.NodeM - 1
 		}
@@ -105,7 +110,7 @@ func determined(sigma, aim float64) bool { return 3*sigma <= aim }
 // (compare.Vehicle.DampedModes):
 //   - both modes found in every case (two distinct physical poles in the band);
 //   - the stated sigmas cover the errors: most within 2 sigma, none beyond
-//     maxZ (nodes with an infinite sigma, undetermined, are counted apart);
+//     maxZ (nodes without a sigma, undetermined, are counted apart);
 //   - every value whose own sigma says it is determined to its aim (3 sigma
 //     inside it) meets the aim;
 //   - the labels agree with the model when both modes are well excited.
@@ -129,7 +134,7 @@ func TestAccuracyOnSimulatedDrops(t *testing.T) {
 			"dnode %+.3f  z %+.1f %+.1f %+.1f %+.1f", e.seed, e.rateHz, e.label, e.share, e.freqRel, e.zetaAbs,
 			e.ppbAbs, e.nodeRel, e.zFreq, e.zZeta, e.zPPB, e.zNode))
 		for k, z := range []float64{e.zFreq, e.zZeta, e.zPPB, e.zNode} {
-			if k == 3 && math.IsInf(md.Sigma.NodeM, 1) {
+			if k == 3 && math.IsNaN(md.SD.NodeM) {
 				undetermined++
 				continue
 			}
@@ -143,12 +148,12 @@ func TestAccuracyOnSimulatedDrops(t *testing.T) {
 				t.Errorf("seed %d %s: an error of %.1f sigma (quantity %d)", e.seed, e.label, z, k)
 			}
 		}
-		nodeErr, nodeSig := math.Abs(e.ppbAbs)*e.wheelbaseM, md.Sigma.PitchPerBounceRadPerM*e.wheelbaseM
+		nodeErr, nodeSig := math.Abs(e.ppbAbs)*e.wheelbaseM, md.SD.PitchPerBounceRadPerM*e.wheelbaseM
 		if !math.IsNaN(e.nodeRel) {
-			nodeErr, nodeSig = math.Abs(e.nodeRel), md.Sigma.NodeM/math.Abs(md.NodeM)
+			nodeErr, nodeSig = math.Abs(e.nodeRel), md.SD.NodeM/math.Abs(md.NodeM)
 		}
 		errs := [3]float64{math.Abs(e.freqRel), math.Abs(e.zetaAbs), nodeErr}
-		sigs := [3]float64{md.Sigma.NaturalFrequencyHz / md.NaturalFrequencyHz, md.Sigma.DampingRatio, nodeSig}
+		sigs := [3]float64{md.SD.NaturalFrequencyHz / md.NaturalFrequencyHz, md.SD.DampingRatio, nodeSig}
 		aims := [3]float64{aimFreqRel, aimZetaAbs, aimNodeRel}
 		well := 0
 		if e.share >= wellExcitedShare {
@@ -224,19 +229,27 @@ const (
 
 // TestSigmaCoverageMonteCarlo repeats one well-excited car (scenario 22)
 // with 40 noise seeds, without and with decimation, and asks that the stated
-// sigmas of natural frequency, damping ratio, pitch per bounce and node cover
-// the errors against the model's modes as Gaussian sigmas would.
+// sigmas of natural frequency, damping ratio, pitch per bounce, node and the
+// shape at the sensors cover the errors against the model's modes as
+// Gaussian sigmas would.
 func TestSigmaCoverageMonteCarlo(t *testing.T) {
 	for _, rate := range []float64{200, 1000} {
 		base := randomScenario(22, rate)
 		var n [2][4]int
 		var sumSq, sumSig [2][4]float64
+		var shapeIn, shapeAll [2]int
 		for run := 0; run < mcRuns; run++ {
 			s := base
 			s.opt.Seed = 1000 + uint64(run)
 			es, res := runCase(t, s)
 			for i, e := range es {
-				sig := res.Modes[i].Sigma
+				for _, z := range e.zShape {
+					shapeAll[i]++
+					if math.Abs(z) <= coverageSigmas {
+						shapeIn[i]++
+					}
+				}
+				sig := res.Modes[i].SD
 				errs := [4]float64{e.zFreq * sig.NaturalFrequencyHz, e.zetaAbs, e.ppbAbs, e.zNode * sig.NodeM}
 				sigs := [4]float64{sig.NaturalFrequencyHz, sig.DampingRatio, sig.PitchPerBounceRadPerM, sig.NodeM}
 				for k, z := range []float64{e.zFreq, e.zZeta, e.zPPB, e.zNode} {
@@ -249,6 +262,11 @@ func TestSigmaCoverageMonteCarlo(t *testing.T) {
 			}
 		}
 		for i := range n {
+			cov := float64(shapeIn[i]) / float64(shapeAll[i])
+			t.Logf("%g Hz mode %d %-16s: within 2 sigma %.3f (%d values)", rate, i, "shape", cov, shapeAll[i])
+			if cov < mcMinCoverage {
+				t.Errorf("%g Hz mode %d shape: only %.2f of the errors within 2 sigma", rate, i, cov)
+			}
 			for k, name := range []string{"frequency", "damping ratio", "pitch per bounce", "node"} {
 				cov := float64(n[i][k]) / mcRuns
 				t.Logf("%g Hz mode %d %-16s: within 2 sigma %.3f; RMS error / mean sigma %.2f", rate, i, name, cov,

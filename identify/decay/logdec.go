@@ -1,6 +1,10 @@
 package decay
 
-import "math"
+import (
+	"math"
+
+	"github.com/ridemodes/ridemodes/identify/body"
+)
 
 // logDecLobeK is the height, in noise sd of the fitted samples, that a
 // half-cycle lobe must reach to count: smaller lobes are mostly noise.
@@ -37,7 +41,7 @@ type LogDecrement struct {
 // Reference: the logarithmic decrement of a single-degree-of-freedom free
 // vibration, e.g. W. T. Thomson and M. D. Dahleh, Theory of Vibration with
 // Applications, 5th ed., Prentice Hall, 1998, Sec. 2.6 [memory].
-func logDecrement(channel int, y []float64, dtS, noiseSD float64, modes []Mode) LogDecrement {
+func logDecrement(channel int, y []float64, dtS, noiseSD float64, modes []body.Mode) LogDecrement {
 	h := logDecLobeK * noiseSD
 	var peaks, times []float64
 	sign := 0.0
@@ -81,7 +85,7 @@ func logDecrement(channel int, y []float64, dtS, noiseSD float64, modes []Mode) 
 
 // overlapping reports whether two modes' half-power bands (fn +- zeta fn)
 // meet.
-func overlapping(ms []Mode) bool {
+func overlapping(ms []body.Mode) bool {
 	a, b := ms[0], ms[1]
 	return math.Abs(b.NaturalFrequencyHz-a.NaturalFrequencyHz) <
 		a.DampingRatio*a.NaturalFrequencyHz+b.DampingRatio*b.NaturalFrequencyHz

@@ -6,6 +6,8 @@ import (
 	"sort"
 	"strings"
 	"testing"
+
+	"github.com/ridemodes/ridemodes/identify/body"
 )
 
 // TestLogDecrementOneMode: on a single damped cosine, exp(-zeta w t) cos(wd t),
@@ -27,7 +29,7 @@ func TestLogDecrementOneMode(t *testing.T) {
 			y[k] = math.Exp(-zeta*w*tS) * math.Cos(wd*tS)
 		}
 		// Two far-apart modes stand in for a fit that found no overlap.
-		apart := []Mode{{NaturalFrequencyHz: 1, DampingRatio: 0.01}, {NaturalFrequencyHz: 3, DampingRatio: 0.01}}
+		apart := []body.Mode{{NaturalFrequencyHz: 1, DampingRatio: 0.01}, {NaturalFrequencyHz: 3, DampingRatio: 0.01}}
 		ld := logDecrement(0, y, 1/rateHz, 1e-4, apart)
 		if !ld.Valid || math.Abs(ld.DampingRatio-zeta) > oneModeTol {
 			t.Errorf("zeta %.2f: log decrement %.4f (valid %v, %s)", zeta, ld.DampingRatio, ld.Valid, ld.Reason)

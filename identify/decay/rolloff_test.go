@@ -78,8 +78,8 @@ func (p *pitchStats) add(es []modeError, res *Result, truthPitch int) {
 	e, md := es[truthPitch], res.Modes[truthPitch]
 	p.freqErr = append(p.freqErr, math.Abs(e.freqRel))
 	p.zetaErr = append(p.zetaErr, math.Abs(e.zetaAbs))
-	p.freqSig = append(p.freqSig, md.Sigma.NaturalFrequencyHz/md.NaturalFrequencyHz)
-	p.zetaSig = append(p.zetaSig, md.Sigma.DampingRatio)
+	p.freqSig = append(p.freqSig, md.SD.NaturalFrequencyHz/md.NaturalFrequencyHz)
+	p.zetaSig = append(p.zetaSig, md.SD.DampingRatio)
 	p.share = append(p.share, e.share)
 }
 
@@ -148,10 +148,10 @@ func TestRollOffAccuracy(t *testing.T) {
 					t.Errorf("seed %d %s rolled off: an error of %.1f sigma (quantity %d)", seed, e.label, z, k)
 				}
 			}
-			if determined(md.Sigma.NaturalFrequencyHz/md.NaturalFrequencyHz, aimFreqRel) && math.Abs(e.freqRel) > aimFreqRel {
+			if determined(md.SD.NaturalFrequencyHz/md.NaturalFrequencyHz, aimFreqRel) && math.Abs(e.freqRel) > aimFreqRel {
 				t.Errorf("seed %d %s rolled off: frequency determined but off by %.4f", seed, e.label, e.freqRel)
 			}
-			if determined(md.Sigma.DampingRatio, aimZetaAbs) && math.Abs(e.zetaAbs) > aimZetaAbs {
+			if determined(md.SD.DampingRatio, aimZetaAbs) && math.Abs(e.zetaAbs) > aimZetaAbs {
 				t.Errorf("seed %d %s rolled off: damping ratio determined but off by %.4f", seed, e.label, e.zetaAbs)
 			}
 		}

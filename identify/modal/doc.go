@@ -17,7 +17,7 @@
 //
 // SI units: frequencies in Hz at the interface, angular frequencies in rad/s
 // inside, positions in m, pitch in rad. Body axes and signs are those of
-// package compare (ISO 8855): z up, pitch theta positive nose-down, s
+// package identify/body (ISO 8855): z up, pitch theta positive nose-down, s
 // positive forward of the CG, w(s) = z - s*theta. Harmonic quantities follow
 // the e^{+i omega t} convention, so a stable pole lambda has Re(lambda) < 0
 // and the oscillating one of a conjugate pair Im(lambda) > 0.
@@ -57,7 +57,10 @@
 // correlation and the covariance of the fitted parameters is the sandwich
 // B^-1 M B^-1 with B = J^T W J and M the same sum with the bin correlation,
 // scaled up by the reduced chi-square when that exceeds one. Derived
-// quantities get their standard deviations by the delta method.
+// quantities get their standard deviations by the delta method; the node's is
+// NaN (undetermined) when the mode has no node or its pitch per bounce is
+// zero within two of its standard deviations (body.SortAndLabel, the rule of
+// both routes).
 //
 // # References
 //

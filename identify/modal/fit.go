@@ -4,12 +4,11 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
-	"sort"
 
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
 
-	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/identify/body"
 	"github.com/ridemodes/ridemodes/identify/lsq"
 )
 
@@ -48,35 +47,6 @@ type Options struct {
 	OmitUpperResidual, OmitLowerResidual bool
 }
 
-// ModeSD holds the 1-sigma standard deviations of a Mode's parameters.
-type ModeSD struct {
-	NaturalFrequencyHz    float64
-	DampedFrequencyHz     float64
-	DampingRatio          float64
-	PitchPerBounceRadPerM float64
-	NodeM                 float64
-	ShapeRe, ShapeIm      []float64 // of the real and imaginary parts of Shape
-}
-
-// Mode is one identified body mode.
-type Mode struct {
-	Label                 string     // "bounce" or "pitch"
-	Pole                  complex128 // lambda [rad/s]
-	NaturalFrequencyHz    float64    // |lambda|/(2 pi)
-	DampedFrequencyHz     float64    // Im(lambda)/(2 pi)
-	DampingRatio          float64    // -Re(lambda)/|lambda|
-	PitchPerBounceRadPerM float64    // Re(theta/z)
-	NodeM                 float64    // 1/Re(theta/z); NaN when the mode has no pitch
-	// HeaveAndPitch is the shape (z, theta) in (m, rad), scaled to z = 1.
-	HeaveAndPitch [2]complex128
-	// Shape is the mode shape at each sensor, w(s_k)/z, scaled to z = 1.
-	Shape []complex128
-	// RankOneRatio is the second over the first singular value of the
-	// mode's residue matrix (0 for an exact base-excitation mode).
-	RankOneRatio float64
-	SD           ModeSD
-}
-
 // Stabilisation is the stabilisation chart data of the LSCF order sweep.
 type Stabilisation struct {
 	MinOrder, MaxOrder int
@@ -85,7 +55,9 @@ type Stabilisation struct {
 
 // Result is the outcome of Fit.
 type Result struct {
-	Modes []Mode // two modes, sorted by natural frequency
+	// Modes are the two body modes, sorted by natural frequency and labelled
+	// (body.SortAndLabel), with RankOneRatio filled.
+	Modes []body.Mode
 	// MAC is the modal assurance criterion of the two modes' sensor shapes.
 	MAC float64
 	// NormalisedResidual is sqrt(sum |H - H_model|^2 / sum |H|^2) over every
@@ -255,7 +227,7 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	}
 	res.ChiSquarePerDOF = chi2
 	res.Modes = pr.modesWithSD(theta, cov)
-	res.MAC = compare.MAC(res.Modes[0].Shape, res.Modes[1].Shape)
+	res.MAC = body.MAC(res.Modes[0].Shape, res.Modes[1].Shape)
 	res.UpperResidual, res.LowerResidual = pr.residualTerms(theta)
 	res.NormalisedResidual = pr.normalisedResidual(theta)
 	res.CoherenceInBand = coherenceInBand(set, b.bins)
@@ -325,7 +297,7 @@ func (pr poleResidue) residueMatrix(theta []float64, r int) [][]complex128 {
 // bounce, node, Re shape_k..., Im shape_k...) of the parameters theta, with
 // the shape scaled to z = 1 and heave and pitch by kin (the sensors'
 // kinematics). It is the function the delta method differentiates.
-func (pr poleResidue) modeQuantities(theta []float64, r int, kin compare.Kinematics) []float64 {
+func (pr poleResidue) modeQuantities(theta []float64, r int, kin body.Kinematics) []float64 {
 	l := pr.pole(theta, r)
 	w := cmplx.Abs(l)
 	psi, _ := pr.shape(theta, r)
@@ -353,11 +325,11 @@ func (pr poleResidue) shape(theta []float64, r int) ([]complex128, float64) {
 }
 
 // modesWithSD builds both modes with standard deviations by the delta
-// method, sorted by natural frequency and labelled.
-func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []Mode {
-	ms := make([]Mode, pr.modes)
+// method, sorted by natural frequency and labelled (body.SortAndLabel).
+func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []body.Mode {
+	ms := make([]body.Mode, pr.modes)
 	nsens := len(pr.b.set.OutputPosM)
-	kin := compare.NewKinematics(pr.b.set.OutputPosM)
+	kin := body.NewKinematics(pr.b.set.OutputPosM)
 	for r := range ms {
 		q := pr.modeQuantities(theta, r, kin)
 		nq := len(q)
@@ -370,14 +342,11 @@ func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []Mode {
 		sd := func(i int) float64 { return math.Sqrt(math.Max(v.At(i, i), 0)) }
 		psi, rank := pr.shape(theta, r)
 		z, th := kin.HeavePitch(psi)
-		m := Mode{
+		m := body.Mode{
 			Pole: pr.pole(theta, r), NaturalFrequencyHz: q[0], DampedFrequencyHz: q[1], DampingRatio: q[2],
 			PitchPerBounceRadPerM: q[3], NodeM: q[4], HeaveAndPitch: [2]complex128{1, th / z},
 			RankOneRatio: rank,
-			SD:           ModeSD{NaturalFrequencyHz: sd(0), DampedFrequencyHz: sd(1), DampingRatio: sd(2), PitchPerBounceRadPerM: sd(3), NodeM: sd(4)},
-		}
-		if math.IsNaN(m.NodeM) {
-			m.SD.NodeM = nan()
+			SD:           body.SD{NaturalFrequencyHz: sd(0), DampedFrequencyHz: sd(1), DampingRatio: sd(2), PitchPerBounceRadPerM: sd(3), NodeM: sd(4)},
 		}
 		for k := range nsens {
 			m.Shape = append(m.Shape, complex(q[5+k], q[5+nsens+k]))
@@ -386,8 +355,7 @@ func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []Mode {
 		}
 		ms[r] = m
 	}
-	sort.Slice(ms, func(i, j int) bool { return ms[i].NaturalFrequencyHz < ms[j].NaturalFrequencyHz })
-	ms[0].Label, ms[1].Label = compare.BodyLabels(ms[0].NodeM, ms[1].NodeM)
+	body.SortAndLabel(ms)
 	return ms
 }
 

@@ -1,4 +1,4 @@
-package compare
+package body
 
 import (
 	"math"
@@ -18,7 +18,7 @@ func TestKinematicsRoundTrip(t *testing.T) {
 	for _, pos := range [][]float64{{1.1, -1.4}, {1.3, 0.4, -0.2, -1.5}} {
 		w := make([]complex128, len(pos))
 		for k, s := range pos {
-			w[k] = Mode{Shape: [2]complex128{z, theta}}.ShapeAt(s)
+			w[k] = z - complex(s, 0)*theta
 		}
 		kin := NewKinematics(pos)
 		gz, gt := kin.HeavePitch(w)
@@ -32,22 +32,5 @@ func TestKinematicsRoundTrip(t *testing.T) {
 	}
 	if n := NodeM(1e-12, 2.7); !math.IsNaN(n) {
 		t.Errorf("node of a pitch of 1e-12 rad/m over 2.7 m: %g, want NaN (no node)", n)
-	}
-}
-
-func TestBodyLabels(t *testing.T) {
-	for _, c := range []struct {
-		n0, n1 float64
-		l0     string
-	}{
-		{-2.6, 0.3, "bounce"},
-		{0.3, -2.6, "pitch"},
-		{0.3, math.NaN(), "pitch"}, // no node: infinitely far
-		{math.NaN(), -0.5, "bounce"},
-	} {
-		l0, l1 := BodyLabels(c.n0, c.n1)
-		if l0 != c.l0 || l0 == l1 {
-			t.Errorf("nodes %g, %g m: labels %s, %s; want %s first", c.n0, c.n1, l0, l1, c.l0)
-		}
 	}
 }

@@ -1,4 +1,4 @@
-package compare
+package body
 
 import (
 	"fmt"
@@ -36,7 +36,7 @@ func NewKinematics(sM []float64) Kinematics {
 	}
 	det := n*s2 - s1*s1
 	if !(det > 0) || math.IsInf(det, 0) {
-		panic(fmt.Sprintf("compare: sensors at %v m cannot separate heave from pitch; "+
+		panic(fmt.Sprintf("body: sensors at %v m cannot separate heave from pitch; "+
 			"they must sit at two or more distinct, finite positions", sM))
 	}
 	k := Kinematics{ZWeights: make([]float64, len(sM)), ThetaWeights: make([]float64, len(sM)), ReachM: reach}
@@ -52,7 +52,7 @@ func NewKinematics(sM []float64) Kinematics {
 // positions). A w of another length is a caller mistake and panics.
 func (k Kinematics) HeavePitch(w []complex128) (z, theta complex128) {
 	if len(w) != len(k.ZWeights) {
-		panic(fmt.Sprintf("compare: a shape of %d values for %d sensors", len(w), len(k.ZWeights)))
+		panic(fmt.Sprintf("body: a shape of %d values for %d sensors", len(w), len(k.ZWeights)))
 	}
 	for i, v := range w {
 		z += complex(k.ZWeights[i], 0) * v
@@ -79,21 +79,4 @@ func NodeM(ppb, lengthM float64) float64 {
 		return math.NaN()
 	}
 	return 1 / ppb
-}
-
-// BodyLabels names the two body modes by their nodes (m from the CG, NaN for
-// a mode without one): the mode whose node lies farther from the CG is
-// "bounce", the other "pitch". A mode without a node counts as infinitely
-// far; when both are as far, the first is bounce.
-func BodyLabels(node0M, node1M float64) (label0, label1 string) {
-	dist := func(nodeM float64) float64 {
-		if math.IsNaN(nodeM) {
-			return math.Inf(1)
-		}
-		return math.Abs(nodeM)
-	}
-	if dist(node1M) > dist(node0M) {
-		return "pitch", "bounce"
-	}
-	return "bounce", "pitch"
 }

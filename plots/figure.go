@@ -78,35 +78,7 @@ func (f *Figure) Save(path string) error {
 	if err != nil {
 		return fmt.Errorf("plots: saving %s: %w", path, err)
 	}
-	return writeFileAtomic(path, b)
-}
-
-// writeFileAtomic writes data to a temporary file beside path and renames it
-// to path; on any failure the temporary file is removed.
-func writeFileAtomic(path string, data []byte) (err error) {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return fmt.Errorf("plots: writing %s: %w", path, err)
-	}
-	defer func() {
-		if err != nil {
-			tmp.Close()
-			os.Remove(tmp.Name())
-		}
-	}()
-	if _, err = tmp.Write(data); err != nil {
-		return fmt.Errorf("plots: writing %s: %w", path, err)
-	}
-	if err = tmp.Chmod(0o644); err != nil {
-		return fmt.Errorf("plots: writing %s: %w", path, err)
-	}
-	if err = tmp.Close(); err != nil {
-		return fmt.Errorf("plots: writing %s: %w", path, err)
-	}
-	if err = os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("plots: writing %s: %w", path, err)
-	}
-	return nil
+	return ingest.WriteFileAtomic(path, b)
 }
 
 // SeriesError reports a data problem in one series of a figure's input.

@@ -13,6 +13,7 @@ import (
 	"strings"
 
 	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/ingest"
 )
 
 // ReportFile is the name of the report inside the report directory.
@@ -139,13 +140,13 @@ func WriteReport(dir string, in ReportInput) (written []string, err error) {
 	}()
 	for i, spec := range specs {
 		path := filepath.Join(dir, spec.file)
-		if err := writeFileAtomic(path, pngs[i]); err != nil {
+		if err := ingest.WriteFileAtomic(path, pngs[i]); err != nil {
 			return written, err
 		}
 		written = append(written, path)
 	}
 	path := filepath.Join(dir, ReportFile)
-	if err := writeFileAtomic(path, page.Bytes()); err != nil {
+	if err := ingest.WriteFileAtomic(path, page.Bytes()); err != nil {
 		return written, err
 	}
 	return append(written, path), nil

@@ -1,11 +1,7 @@
 package cli
 
 import (
-	"bytes"
-	"encoding/json"
-	"errors"
 	"fmt"
-	"os"
 
 	"github.com/spf13/cobra"
 
@@ -40,19 +36,19 @@ Exit codes: 0 done; 1 bad data; 2 bad usage; 3 done, but a target failed.`,
 			if err != nil {
 				return err
 			}
-			if jsonPath != "" && (sameFile(jsonPath, modesPath) || sameFile(jsonPath, setupPath)) {
-				return usageError{fmt.Errorf("--json %s would overwrite an input file", jsonPath)}
+			if err := outputGuard("json", jsonPath, modesPath, setupPath); err != nil {
+				return err
 			}
-			measured, err := readModes(modesPath)
+			measured, err := compare.ReadModesFile(modesPath)
 			if err != nil {
 				return err
 			}
 			res := &compare.Result{Tool: compare.Tool{Name: "ridemodes", Version: version()},
 				Test: measured.Test, Log: measured.Log, Analysis: measured.Analysis, Modes: measured.Modes}
-			if sum, err := fileSHA256(setupPath); err == nil {
+			if sum, err := ingest.FileSHA256(setupPath); err == nil {
 				res.Setup = &compare.FileRef{Path: setupPath, SHA256: sum}
 			}
-			failed, err := assess(res, setup)
+			failed, err := res.AssessAgainst(setup)
 			if err != nil {
 				return fmt.Errorf("%s: %w", modesPath, err)
 			}
@@ -62,7 +58,7 @@ Exit codes: 0 done; 1 bad data; 2 bad usage; 3 done, but a target failed.`,
 				if err != nil {
 					return err
 				}
-				if err := writeFileAtomic(jsonPath, data); err != nil {
+				if err := ingest.WriteFileAtomic(jsonPath, data); err != nil {
 					return err
 				}
 			}
@@ -81,44 +77,4 @@ Exit codes: 0 done; 1 bad data; 2 bad usage; 3 done, but a target failed.`,
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.MarkFlagFilename("json", "json")
 	return cmd
-}
-
-// readModes reads a result or modes file strictly: unknown keys are errors,
-// so a misspelt key is not silently ignored.
-func readModes(path string) (*compare.Result, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return nil, fmt.Errorf("cannot read the modes file: %w", err)
-	}
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	var res compare.Result
-	if err := dec.Decode(&res); err != nil {
-		var se *json.SyntaxError
-		var te *json.UnmarshalTypeError
-		switch {
-		case errors.As(err, &se):
-			line, col := lineCol(data, se.Offset)
-			return nil, fmt.Errorf("%s:%d:%d: %v; check the JSON syntax", path, line, col, se)
-		case errors.As(err, &te):
-			line, col := lineCol(data, te.Offset)
-			return nil, fmt.Errorf("%s:%d:%d: key %q: %v", path, line, col, te.Field, err)
-		}
-		return nil, fmt.Errorf("%s: %v (the file holds a ridemodes result or an object with a \"modes\" array)", path, err)
-	}
-	if len(res.Modes) == 0 {
-		return nil, fmt.Errorf("%s: no \"modes\" array with measured modes", path)
-	}
-	return &res, nil
-}
-
-// lineCol converts a byte offset into a 1-based line and column.
-func lineCol(data []byte, off int64) (int, int) {
-	if off > int64(len(data)) {
-		off = int64(len(data))
-	}
-	before := data[:off]
-	line := bytes.Count(before, []byte("\n")) + 1
-	col := int(off) - bytes.LastIndexByte(before, '\n')
-	return line, col
 }

@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"context"
 	"embed"
 	"errors"
 	"fmt"
@@ -11,14 +12,16 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/compare/simulate"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
-// demoFiles is the invented demo scenario: a design setup for the rig and
-// the drop test, and the car as built, from which the logs are simulated.
+// demoFiles is the invented demo scenario: the car's design setup, which
+// serves the rig and the drop test, and the car as built, from which the
+// logs are simulated.
 //
-//go:embed demo/design.toml demo/design-drop.toml demo/built.toml
+//go:embed demo/design.toml demo/built.toml
 var demoFiles embed.FS
 
 // Demo test conditions: a 5-minute rig run with 5 % noise on every channel
@@ -50,7 +53,7 @@ The scenario is made up; its logs are synthetic, not measurements.
   ridemodes demo --out /tmp/ridemodes-demo`,
 		Args: usageArgs(cobra.NoArgs),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			return runDemo(outDir, cmd.OutOrStdout())
+			return runDemo(cmd.Context(), outDir, cmd.OutOrStdout())
 		},
 	}
 	cmd.Flags().StringVar(&outDir, "out", "ridemodes-demo", "folder to create for the demo (must be new or empty)")
@@ -73,16 +76,16 @@ func prepareDemoDir(dir string) error {
 	return nil
 }
 
-func runDemo(dir string, out io.Writer) error {
+func runDemo(ctx context.Context, dir string, out io.Writer) error {
 	if err := prepareDemoDir(dir); err != nil {
 		return err
 	}
-	for _, name := range []string{"design.toml", "design-drop.toml", "built.toml"} {
+	for _, name := range []string{"design.toml", "built.toml"} {
 		data, err := demoFiles.ReadFile("demo/" + name)
 		if err != nil {
 			return err
 		}
-		if err := writeFileAtomic(filepath.Join(dir, name), data); err != nil {
+		if err := ingest.WriteFileAtomic(filepath.Join(dir, name), data); err != nil {
 			return err
 		}
 	}
@@ -105,33 +108,35 @@ func runDemo(dir string, out io.Writer) error {
 		return err
 	}
 	for name, log := range map[string]*simulate.Log{"rig.csv": rig, "drop.csv": drop} {
-		if err := writeAtomic(filepath.Join(dir, name), func(w io.Writer) error {
+		if err := ingest.WriteAtomic(filepath.Join(dir, name), func(w io.Writer) error {
 			return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
 		}); err != nil {
 			return err
 		}
 	}
 	fmt.Fprintf(out, "ridemodes demo: an invented prototype, HX-2 mule 3, in %s\n", dir)
-	fmt.Fprintf(out, "  design.toml, design-drop.toml  the design model, sensors, rig inputs and targets\n")
-	fmt.Fprintf(out, "  rig.csv, drop.csv              logs simulated from the car as built (built.toml): rear rate +10 %%, dampers -20 %%\n")
+	fmt.Fprintf(out, "  design.toml        the design model, sensors, rig inputs and targets: one setup for both tests\n")
+	fmt.Fprintf(out, "  rig.csv, drop.csv  logs simulated from the car as built (built.toml): rear rate +10 %%, dampers -20 %%\n")
 
 	failed := false
-	for _, run := range []struct{ title, log, setup, json, report string }{
-		{"Rig test", "rig.csv", "design.toml", "result.json", "report"},
-		{"Drop test", "drop.csv", "design-drop.toml", "drop-result.json", "drop-report"},
+	for _, run := range []struct{ title, log, test, json, report string }{
+		{"Rig test", "rig.csv", "rig", "result.json", "report"},
+		{"Drop test", "drop.csv", "drop", "drop-result.json", "drop-report"},
 	} {
-		fmt.Fprintf(out, "\n=== %s: ridemodes analyze %s --setup %s --json %s --report %s\n\n",
-			run.title, filepath.Join(dir, run.log), filepath.Join(dir, run.setup), filepath.Join(dir, run.json),
-			filepath.Join(dir, run.report))
-		af := &analyzeFlags{setupPath: filepath.Join(dir, run.setup), jsonPath: filepath.Join(dir, run.json)}
-		a, f, err := runAnalyze(filepath.Join(dir, run.log), af, out)
+		o := job.Options{LogPath: filepath.Join(dir, run.log), SetupPath: filepath.Join(dir, "design.toml"),
+			Test: run.test, ToolVersion: version()}
+		fmt.Fprintf(out, "\n=== %s: ridemodes analyze %s --setup %s --test %s --json %s --report %s\n\n",
+			run.title, o.LogPath, o.SetupPath, run.test, filepath.Join(dir, run.json), filepath.Join(dir, run.report))
+		res, err := job.Analyze(ctx, o)
 		if err != nil {
 			return err
 		}
-		if err := writeOutputs(a, af.jsonPath, filepath.Join(dir, run.report)); err != nil {
+		printSummary(out, res.Result)
+		err = writeOutcome(res, filepath.Join(dir, run.json), filepath.Join(dir, run.report))
+		if err != nil && !errors.Is(err, errTargetsFailed) {
 			return err
 		}
-		failed = failed || f
+		failed = failed || res.TargetFailed
 	}
 	fmt.Fprintf(out, "\nReports: %s and %s\n", filepath.Join(dir, "report", "report.html"),
 		filepath.Join(dir, "drop-report", "report.html"))

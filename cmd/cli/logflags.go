@@ -2,128 +2,43 @@ package cli
 
 import (
 	"fmt"
-	"math"
-	"os"
 
 	"github.com/spf13/cobra"
 
-	"github.com/ridemodes/ridemodes/identify"
+	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/identify/spectral"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
-// logFlags are the options shared by every command that reads a log.
-type logFlags struct {
-	startS, endS float64
-	resample     bool
-	bandLowHz    float64
-	bandHighHz   float64
-	segment      int
-	window       string
-}
-
-func (f *logFlags) register(cmd *cobra.Command) {
+// registerLogFlags adds the flags of every command that reads a log, bound
+// to the library's options, and a progress bar on the command's stderr.
+func registerLogFlags(cmd *cobra.Command, o *job.Options) {
 	fl := cmd.Flags()
-	fl.Float64Var(&f.startS, "start", 0, "analyse from this time in s, counted from the log's first sample")
-	fl.Float64Var(&f.endS, "end", 0, "analyse up to this time in s (0: to the end of the log)")
-	fl.BoolVar(&f.resample, "resample", false, "accept jittery time steps and resample onto a uniform grid (warns)")
-	fl.Float64Var(&f.bandLowHz, "band-low", 0, "analysis band, lower edge in Hz (default from [analysis], else 0.5)")
-	fl.Float64Var(&f.bandHighHz, "band-high", 0, "analysis band, upper edge in Hz (default from [analysis], else 4)")
-	fl.IntVar(&f.segment, "segment", 0, "Welch segment length in samples after decimation, a power of two (default from [analysis], else chosen from the damping)")
-	fl.StringVar(&f.window, "window", "", "spectral window: hann, hamming, flattop or rectangular (default from [analysis], else hann)")
-	cmd.RegisterFlagCompletionFunc("window", cobra.FixedCompletions(ingest.Windows, cobra.ShellCompDirectiveNoFileComp))
+	fl.StringVar(&o.SetupPath, "setup", "", "setup file (TOML): vehicle, sensors, inputs, targets")
+	fl.StringVar(&o.Test, "test", "", "rig or drop (default: rig when the setup has [[input]] tables); with drop the inputs are ignored, so one setup serves both tests")
+	fl.Float64Var(&o.StartS, "start", 0, "analyse from this time in s, counted from the log's first sample")
+	fl.Float64Var(&o.EndS, "end", 0, "analyse up to this time in s (0: to the end of the log)")
+	fl.BoolVar(&o.Resample, "resample", false, "accept jittery time steps and resample onto a uniform grid (warns)")
+	fl.Float64Var(&o.BandLowHz, "band-low", 0, "analysis band, lower edge in Hz (default from [analysis], else 0.5)")
+	fl.Float64Var(&o.BandHighHz, "band-high", 0, "analysis band, upper edge in Hz (default from [analysis], else 4)")
+	fl.IntVar(&o.SegmentSamples, "segment", 0, "Welch segment length in samples after decimation, a power of two (default from [analysis], else chosen from the damping)")
+	fl.StringVar(&o.Window, "window", "", "spectral window: hann, hamming, flattop or rectangular (default from [analysis], else hann)")
+	cmd.MarkFlagRequired("setup")
+	cmd.MarkFlagFilename("setup", "toml")
+	cmd.RegisterFlagCompletionFunc("window", cobra.FixedCompletions(spectral.WindowNames, cobra.ShellCompDirectiveNoFileComp))
+	cmd.RegisterFlagCompletionFunc("test", cobra.FixedCompletions([]string{"rig", "drop"}, cobra.ShellCompDirectiveNoFileComp))
+	o.ToolVersion = version()
+	o.Progress = func(path string, size int64) (func(int64, int64), func()) {
+		return terminalProgress(cmd.ErrOrStderr(), size, "reading "+path)
+	}
 }
 
-// band returns the analysis band: flags over [analysis] over the defaults.
-func (f *logFlags) band(setup *ingest.Setup) (lo, hi float64) {
-	lo, hi = identify.DefaultBandLowHz, identify.DefaultBandHighHz
-	if setup.Analysis.BandLowHz > 0 {
-		lo = setup.Analysis.BandLowHz
+// outputGuard refuses an output path that names one of the inputs.
+func outputGuard(flag, out string, inputs ...string) error {
+	for _, in := range inputs {
+		if out != "" && ingest.SameFile(out, in) {
+			return usageError{fmt.Errorf("--%s %s would overwrite an input file", flag, out)}
+		}
 	}
-	if setup.Analysis.BandHighHz > 0 {
-		hi = setup.Analysis.BandHighHz
-	}
-	if f.bandLowHz > 0 {
-		lo = f.bandLowHz
-	}
-	if f.bandHighHz > 0 {
-		hi = f.bandHighHz
-	}
-	return lo, hi
-}
-
-// frfOptions returns the spectral options of the command line and setup.
-func (f *logFlags) frfOptions(setup *ingest.Setup) (identify.FRFOptions, error) {
-	lo, hi := f.band(setup)
-	name := setup.Analysis.Window
-	if f.window != "" {
-		name = f.window
-	}
-	w, err := windowNamed(name)
-	if err != nil {
-		return identify.FRFOptions{}, err
-	}
-	seg := setup.Analysis.SegmentSamples
-	if f.segment != 0 {
-		seg = f.segment
-	}
-	return identify.FRFOptions{BandLowHz: lo, BandHighHz: hi, SegmentLen: seg, Window: w}, nil
-}
-
-// windowNamed maps the setup's window names to the spectral package's windows.
-func windowNamed(name string) (spectral.Window, error) {
-	switch name {
-	case "", "hann":
-		return spectral.Window{Kind: spectral.Hann}, nil
-	case "hamming":
-		return spectral.Window{Kind: spectral.Hamming}, nil
-	case "flattop":
-		return spectral.Window{Kind: spectral.FlatTop}, nil
-	case "rectangular":
-		return spectral.Window{Kind: spectral.Rectangular}, nil
-	}
-	return spectral.Window{}, usageError{fmt.Errorf("unknown window %q; use one of hann, hamming, flattop, rectangular", name)}
-}
-
-// channelsOf lists the log channels a setup reads: inputs first, then sensors.
-func channelsOf(setup *ingest.Setup) []string {
-	var ch []string
-	for _, in := range setup.Inputs {
-		ch = append(ch, in.Channel)
-	}
-	for _, s := range setup.Sensors {
-		ch = append(ch, s.Channel)
-	}
-	return ch
-}
-
-// openLog opens a log for the setup's channels with the shared options and a
-// progress bar on a terminal. The caller closes the reader and calls done.
-// It refuses a band that is upside down, so every later stage gets a valid one.
-func (f *logFlags) openLog(path string, setup *ingest.Setup) (*ingest.Reader, func(), error) {
-	lo, hi := f.band(setup)
-	if !(lo > 0 && hi > lo) || math.IsInf(hi, 0) {
-		return nil, nil, usageError{fmt.Errorf("the analysis band %g-%g Hz needs 0 < low < high (--band-low, --band-high or [analysis])", lo, hi)}
-	}
-	opt := ingest.Options{
-		Channels:     channelsOf(setup),
-		SampleRateHz: setup.Analysis.SampleRateHz,
-		StartS:       f.startS,
-		EndS:         f.endS,
-		Resample:     f.resample,
-		BandHighHz:   hi,
-	}
-	if len(setup.Inputs) > 0 {
-		opt.MinDurationS = identify.MinRigRecordS(lo)
-	}
-	done := func() {}
-	if st, err := os.Stat(path); err == nil {
-		opt.Progress, done = ingest.TerminalProgress(st.Size(), "reading "+path)
-	}
-	r, err := ingest.Open(path, opt)
-	if err != nil {
-		done()
-		return nil, nil, err
-	}
-	return r, done, nil
+	return nil
 }

@@ -49,24 +49,24 @@ farther from the CG is labelled bounce, the other pitch.`,
 			if jsonPath == "" {
 				return nil
 			}
-			if sameFile(jsonPath, setupPath) {
-				return usageError{fmt.Errorf("--json %s would overwrite the setup file", jsonPath)}
+			if err := outputGuard("json", jsonPath, setupPath); err != nil {
+				return err
 			}
-			sum, err := fileSHA256(setupPath)
+			sum, err := ingest.FileSHA256(setupPath)
 			if err != nil {
 				return err
 			}
 			res := &compare.Result{
 				Tool:   compare.Tool{Name: "ridemodes", Version: version()},
 				Setup:  &compare.FileRef{Path: setupPath, SHA256: sum},
-				Model:  modelPart(modes, damped),
+				Model:  compare.ModelPart(modes, damped),
 				Checks: guidance,
 			}
 			data, err := res.Marshal()
 			if err != nil {
 				return err
 			}
-			return writeFileAtomic(jsonPath, data)
+			return ingest.WriteFileAtomic(jsonPath, data)
 		},
 	}
 	cmd.Flags().StringVar(&setupPath, "setup", "", "setup file (TOML) describing the vehicle")
@@ -75,23 +75,6 @@ farther from the CG is labelled bounce, the other pitch.`,
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.MarkFlagFilename("json", "json")
 	return cmd
-}
-
-// modelMethod names the solver behind the model's modes.
-func modelMethod(damped bool) string {
-	if damped {
-		return "damped state-space eigenproblem"
-	}
-	return "undamped eigenproblem"
-}
-
-// modelPart is the model part of a result: the design model's modes.
-func modelPart(modes []compare.Mode, damped bool) *compare.ModelJSON {
-	m := &compare.ModelJSON{Damped: damped}
-	for _, md := range modes {
-		m.Modes = append(m.Modes, md.JSON("design model, "+modelMethod(damped)))
-	}
-	return m
 }
 
 // nodeWords describes a node position for a reader.
@@ -121,7 +104,7 @@ func printModel(w io.Writer, setup *ingest.Setup, modes []compare.Mode, damped b
 	if name == "" {
 		name = "vehicle"
 	}
-	fmt.Fprintf(w, "Design model of %s (%s), from the %s\n\n", name, setup.Path, modelMethod(damped))
+	fmt.Fprintf(w, "Design model of %s (%s), from the %s\n\n", name, setup.Path, compare.ModelMethod(damped))
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "mode\tf_n [Hz]\tomega_n [rad/s]\tzeta [-]\tf_d [Hz]\tpitch/bounce [rad/m]\tnode [m]\tnode lies")
 	for _, m := range modes {

@@ -1,11 +1,15 @@
 package cli
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
+	"os"
+	"os/signal"
 	"runtime/debug"
 	"strings"
+	"syscall"
 
 	"github.com/spf13/cobra"
 )
@@ -30,6 +34,9 @@ const (
 	exitData    = 1
 	exitUsage   = 2
 	exitTargets = 3
+	// exitInterrupted follows the shell's convention for a run stopped by
+	// SIGINT (128 + 2); no output file is left behind.
+	exitInterrupted = 130
 )
 
 // usageError marks a mistake in the command line (exit code 2).
@@ -84,14 +91,19 @@ Start with "ridemodes demo" for the whole job on an invented example car, or
 
 // Execute runs the command line with args and returns the exit code.
 func Execute(args []string, stdout, stderr io.Writer) int {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
 	root := NewRoot()
 	root.SetArgs(args)
 	root.SetOut(stdout)
 	root.SetErr(stderr)
-	err := root.Execute()
+	err := root.ExecuteContext(ctx)
 	switch {
 	case err == nil:
 		return exitOK
+	case errors.Is(err, context.Canceled):
+		fmt.Fprintln(stderr, "ridemodes: interrupted; no output was written")
+		return exitInterrupted
 	case errors.Is(err, errTargetsFailed):
 		fmt.Fprintln(stderr, "ridemodes:", err)
 		return exitTargets

@@ -49,8 +49,8 @@ byte for byte. Synthetic logs are not measurements.
 			if err != nil {
 				return err
 			}
-			if sameFile(outPath, setupPath) {
-				return usageError{fmt.Errorf("--out %s would overwrite the setup file", outPath)}
+			if err := outputGuard("out", outPath, setupPath); err != nil {
+				return err
 			}
 			if err := testOnlyFlags(cmd, test); err != nil {
 				return err
@@ -74,7 +74,7 @@ byte for byte. Synthetic logs are not measurements.
 			if err != nil {
 				return err
 			}
-			if err := writeAtomic(outPath, func(w io.Writer) error {
+			if err := ingest.WriteAtomic(outPath, func(w io.Writer) error {
 				return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
 			}); err != nil {
 				return err

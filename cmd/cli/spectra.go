@@ -7,15 +7,15 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/ridemodes/ridemodes/compare"
-	"github.com/ridemodes/ridemodes/identify"
+	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/identify/spectral"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
 func newSpectraCmd() *cobra.Command {
 	var (
-		setupPath, csvPath string
-		lf                 logFlags
+		o       job.Options
+		csvPath string
 	)
 	cmd := &cobra.Command{
 		Use:   "spectra LOG --setup FILE --csv OUT",
@@ -38,37 +38,15 @@ resolution bias) are printed.
   ridemodes spectra rig.csv --setup car.toml --csv frf.csv --start 30 --band-high 3`,
 		Args: usageArgs(cobra.ExactArgs(1)),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			logPath := args[0]
-			setup, err := ingest.LoadSetup(setupPath)
-			if err != nil {
+			o.LogPath = args[0]
+			if err := outputGuard("csv", csvPath, o.LogPath, o.SetupPath); err != nil {
 				return err
 			}
-			if sameFile(csvPath, logPath) || sameFile(csvPath, setupPath) {
-				return usageError{fmt.Errorf("--csv %s would overwrite an input file", csvPath)}
-			}
-			opt, err := lf.frfOptions(setup)
+			res, sum, err := job.Spectra(cmd.Context(), o)
 			if err != nil {
-				return err
+				return libraryError(err)
 			}
-			r, done, err := lf.openLog(logPath, setup)
-			if err != nil {
-				return err
-			}
-			defer r.Close()
-			stage, err := identify.NewFRFStage(r.Info().Channels, setup.Sensors, setup.Inputs, opt)
-			if err != nil {
-				return err
-			}
-			sum, err := r.Stream(stage.Consume)
-			done()
-			if err != nil {
-				return err
-			}
-			res, err := stage.Result()
-			if err != nil {
-				return withPath(logPath, err)
-			}
-			if err := writeAtomic(csvPath, func(w io.Writer) error {
+			if err := ingest.WriteAtomic(csvPath, func(w io.Writer) error {
 				if res.FRF != nil {
 					return spectral.WriteFRFTable(w, res.FRF)
 				}
@@ -77,7 +55,7 @@ resolution bias) are printed.
 				return err
 			}
 			out := cmd.OutOrStdout()
-			fmt.Fprintf(out, "read %s: %d samples at %.6g Hz (%.1f s)\n", logPath, sum.Samples, sum.SampleRateHz, sum.DurationS)
+			fmt.Fprintf(out, "read %s: %d samples at %.6g Hz (%.1f s)\n", o.LogPath, sum.Samples, sum.SampleRateHz, sum.DurationS)
 			for _, w := range sum.Warnings {
 				fmt.Fprintf(out, "warning: %s\n", w)
 			}
@@ -96,12 +74,9 @@ resolution bias) are printed.
 			return nil
 		},
 	}
-	cmd.Flags().StringVar(&setupPath, "setup", "", "setup file (TOML) naming the channels")
+	registerLogFlags(cmd, &o)
 	cmd.Flags().StringVar(&csvPath, "csv", "", "table to write (CSV)")
-	lf.register(cmd)
-	cmd.MarkFlagRequired("setup")
 	cmd.MarkFlagRequired("csv")
-	cmd.MarkFlagFilename("setup", "toml")
 	cmd.MarkFlagFilename("csv", "csv")
 	return cmd
 }

@@ -1,4 +1,4 @@
-package cli
+package plots
 
 import (
 	"fmt"
@@ -6,32 +6,33 @@ import (
 	"math/cmplx"
 
 	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/compare/job"
+	"github.com/ridemodes/ridemodes/identify"
 	"github.com/ridemodes/ridemodes/identify/modal"
 	"github.com/ridemodes/ridemodes/ingest"
-	"github.com/ridemodes/ridemodes/plots"
 )
 
 // bandErrorSDs is the width of the FRF error band drawn in the report, in
 // standard deviations of |H| on each side (about a 95 % band).
 const bandErrorSDs = 2
 
-// writeReport writes the HTML report of an analysis and its figures into dir.
-func writeReport(dir string, a *analysis) error {
-	in := plots.ReportInput{
-		Title:   "Body bounce and pitch: " + a.result.Test + " test",
-		Vehicle: a.setup.Vehicle.Name,
-		Result:  a.result,
-		Shapes:  shapeData(a.result, a.setup),
+// OutcomeReport is the report input of one analysed log: its result and
+// the figures its route's data allow.
+func OutcomeReport(o *job.Outcome) ReportInput {
+	in := ReportInput{
+		Title:   "Body bounce and pitch: " + o.Result.Test + " test",
+		Vehicle: o.Setup.Vehicle.Name,
+		Result:  o.Result,
+		Shapes:  shapeData(o.Result, o.Setup),
 	}
-	if a.fit != nil {
-		in.FRF = frfData(a)
-		in.Indicator, in.Stabilisation = indicatorData(a)
+	if rig := o.Identified.Rig; rig != nil {
+		in.FRF = frfData(rig, o.Result.Modes)
+		in.Indicator, in.Stabilisation = indicatorData(rig, o.Result.Modes)
 	}
-	if a.decay != nil {
-		in.Decay = decayData(a)
+	if drop := o.Identified.Drop; drop != nil {
+		in.Decay = decayData(drop, o.Setup.Sensors)
 	}
-	_, err := plots.WriteReport(dir, in)
-	return err
+	return in
 }
 
 // usableBins returns the FRF bins inside the fit band where every FRF and
@@ -60,27 +61,27 @@ next:
 	return bins
 }
 
-func markers(ms []compare.ModeJSON) []plots.Marker {
-	var out []plots.Marker
+func markers(ms []compare.ModeJSON) []Marker {
+	var out []Marker
 	for _, m := range ms {
-		out = append(out, plots.Marker{Label: m.Label, FreqHz: m.NaturalFrequencyHz})
+		out = append(out, Marker{Label: m.Label, FreqHz: m.NaturalFrequencyHz})
 	}
 	return out
 }
 
 // frfData sets the measured FRFs, their error bands and the fitted model
 // side by side over the fit band.
-func frfData(a *analysis) *plots.FRFData {
-	set, fit := a.frfSet, a.fit
+func frfData(rig *identify.RigDetail, modes []compare.ModeJSON) *FRFData {
+	set, fit := rig.Set, rig.Fit
 	cmif := modal.Indicator(set)
 	bins := usableBins(set, cmif, fit.BandLowHz, fit.BandHighHz)
-	d := &plots.FRFData{MagnitudeUnit: "-", Markers: markers(a.result.Modes)}
+	d := &FRFData{MagnitudeUnit: "-", Markers: markers(modes)}
 	for _, k := range bins {
 		d.FreqHz = append(d.FreqHz, set.FreqHz[k])
 	}
 	for o := range set.H {
 		for i := range set.H[o] {
-			c := plots.FRFCurve{Name: set.OutputNames[o] + " / " + set.InputNames[i]}
+			c := FRFCurve{Name: set.OutputNames[o] + " / " + set.InputNames[i]}
 			for _, k := range bins {
 				h := set.H[o][i][k]
 				mag := cmplx.Abs(h)
@@ -100,7 +101,7 @@ func frfData(a *analysis) *plots.FRFData {
 			d.Curves = append(d.Curves, c)
 		}
 		if o < len(set.Coherence) && set.Coherence[o] != nil {
-			s := plots.Series{Name: set.OutputNames[o]}
+			s := Series{Name: set.OutputNames[o]}
 			for _, k := range bins {
 				s.Values = append(s.Values, set.Coherence[o][k])
 			}
@@ -111,26 +112,26 @@ func frfData(a *analysis) *plots.FRFData {
 }
 
 // indicatorData returns the mode indicator and the stabilisation figures' data.
-func indicatorData(a *analysis) (*plots.IndicatorData, *plots.StabData) {
-	set, fit := a.frfSet, a.fit
+func indicatorData(rig *identify.RigDetail, modes []compare.ModeJSON) (*IndicatorData, *StabData) {
+	set, fit := rig.Set, rig.Fit
 	cmif := modal.Indicator(set)
 	bins := usableBins(set, cmif, fit.BandLowHz, fit.BandHighHz)
-	ind := &plots.IndicatorData{Unit: "-"}
+	ind := &IndicatorData{Unit: "-"}
 	for _, k := range bins {
 		ind.FreqHz = append(ind.FreqHz, cmif.FreqHz[k])
 	}
 	for j, sv := range cmif.Singular {
-		s := plots.Series{Name: fmt.Sprintf("singular value %d", j+1)}
+		s := Series{Name: fmt.Sprintf("singular value %d", j+1)}
 		for _, k := range bins {
 			s.Values = append(s.Values, sv[k])
 		}
 		ind.Values = append(ind.Values, s)
 	}
 	for _, q := range fit.Quick {
-		ind.Peaks = append(ind.Peaks, plots.Marker{Label: fmt.Sprintf("peak %.3f Hz", q.PeakHz), FreqHz: q.PeakHz})
+		ind.Peaks = append(ind.Peaks, Marker{Label: fmt.Sprintf("peak %.3f Hz", q.PeakHz), FreqHz: q.PeakHz})
 		ind.PeakSeries = append(ind.PeakSeries, q.Curve)
 	}
-	st := &plots.StabData{Selected: markers(a.result.Modes), IndicatorFreqHz: ind.FreqHz}
+	st := &StabData{Selected: markers(modes), IndicatorFreqHz: ind.FreqHz}
 	if len(ind.Values) > 0 {
 		st.Indicator = ind.Values[0].Values
 	}
@@ -138,22 +139,22 @@ func indicatorData(a *analysis) (*plots.IndicatorData, *plots.StabData) {
 		if !p.Physical {
 			continue
 		}
-		status := plots.PoleNew
+		status := PoleNew
 		switch p.Status {
 		case modal.PoleStable:
-			status = plots.PoleStable
+			status = PoleStable
 		case modal.PoleFrequencyStable:
-			status = plots.PoleFrequencyOnly
+			status = PoleFrequencyOnly
 		}
-		st.Poles = append(st.Poles, plots.StabPole{Order: p.Order, FreqHz: p.NaturalFrequencyHz, Status: status})
+		st.Poles = append(st.Poles, StabPole{Order: p.Order, FreqHz: p.NaturalFrequencyHz, Status: status})
 	}
 	return ind, st
 }
 
 // shapeData draws each measured mode's shape beside the model's, from the
 // result alone (so it serves any route).
-func shapeData(res *compare.Result, setup *ingest.Setup) *plots.ShapeData {
-	d := &plots.ShapeData{FrontM: setup.Vehicle.CGToFrontM, RearM: setup.Vehicle.CGToRearM}
+func shapeData(res *compare.Result, setup *ingest.Setup) *ShapeData {
+	d := &ShapeData{FrontM: setup.Vehicle.CGToFrontM, RearM: setup.Vehicle.CGToRearM}
 	for _, s := range setup.Sensors {
 		d.SensorXM = append(d.SensorXM, s.XM)
 	}
@@ -163,15 +164,15 @@ func shapeData(res *compare.Result, setup *ingest.Setup) *plots.ShapeData {
 			model[m.Label] = m
 		}
 	}
-	line := func(m compare.ModeJSON) *plots.ShapeLine {
+	line := func(m compare.ModeJSON) *ShapeLine {
 		if m.PitchPerBounceRadPerM == nil {
 			return nil
 		}
-		return &plots.ShapeLine{FreqHz: m.NaturalFrequencyHz, DampingRatio: m.DampingRatio,
+		return &ShapeLine{FreqHz: m.NaturalFrequencyHz, DampingRatio: m.DampingRatio,
 			PitchPerBounceRadPerM: *m.PitchPerBounceRadPerM}
 	}
 	for _, m := range res.Modes {
-		sm := plots.ShapeMode{Label: m.Label, Measured: line(m)}
+		sm := ShapeMode{Label: m.Label, Measured: line(m)}
 		if p, ok := model[m.Label]; ok {
 			sm.Model = line(p)
 		}
@@ -194,24 +195,24 @@ func shapeData(res *compare.Result, setup *ingest.Setup) *plots.ShapeData {
 // decayData shows the whole drop log around the event, in SI units, with
 // the fitted free decay over its window. Long logs are thinned to at most
 // maxDecayPoints samples for the figure (every k-th sample).
-func decayData(a *analysis) *plots.DecayData {
-	c := a.decay.Curves
-	d := &plots.DecayData{FitTimeS: c.TimeS, Unit: "m/s^2",
-		WindowStartS: a.decay.WindowStartS, WindowEndS: a.decay.WindowEndS}
-	sum := a.dropLog.Summary
+func decayData(drop *identify.DropDetail, sensors []ingest.Sensor) *DecayData {
+	c := drop.Fit.Curves
+	d := &DecayData{FitTimeS: c.TimeS, Unit: "m/s^2",
+		WindowStartS: drop.Fit.WindowStartS, WindowEndS: drop.Fit.WindowEndS}
+	sum := drop.Log.Summary
 	n := sum.Samples
 	step := max(1, n/maxDecayPoints)
 	for i := 0; i < n; i += step {
 		d.TimeS = append(d.TimeS, sum.T0S+float64(i)/sum.SampleRateHz)
 	}
-	for i, s := range a.setup.Sensors {
-		data := a.dropLog.Channel(s.Channel)
-		m := plots.Series{Name: s.Channel}
+	for i, s := range sensors {
+		data := drop.Log.Channel(s.Channel)
+		m := Series{Name: s.Channel}
 		for k := 0; k < n; k += step {
 			m.Values = append(m.Values, data[k])
 		}
 		d.Measured = append(d.Measured, m)
-		d.Fitted = append(d.Fitted, plots.Series{Name: s.Channel + " fit", Values: c.Fitted[i]})
+		d.Fitted = append(d.Fitted, Series{Name: s.Channel + " fit", Values: c.Fitted[i]})
 	}
 	return d
 }

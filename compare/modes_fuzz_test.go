@@ -1,4 +1,4 @@
-package cli
+package compare_test
 
 import (
 	"os"
@@ -9,8 +9,8 @@ import (
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
-// FuzzCompareModes feeds arbitrary modes files through what `ridemodes
-// compare` does with them: strict reading, then the comparison and the
+// FuzzCompareModes feeds arbitrary modes files through what the compare
+// command does with them: strict reading, then the comparison and the
 // back-calculation against the example setup. Any input may be refused with
 // an error; none may panic.
 func FuzzCompareModes(f *testing.F) {
@@ -18,7 +18,7 @@ func FuzzCompareModes(f *testing.F) {
 	f.Add([]byte(`{"modes":[{"label":"bounce","natural_frequency_hz":1.2,"damping_ratio":0.3,"uncertainty":{"natural_frequency_hz":0.01,"damping_ratio":0.01},` +
 		`"sensor_shape":[{"x_m":0.85,"re":1,"im":0.1},{"x_m":-1.3,"re":0.4,"im":0}]},{"label":"pitch","natural_frequency_hz":1.45,"damping_ratio":0.35,"pitch_per_bounce_rad_per_m":1.8}]}`))
 	f.Add([]byte(`{"modes":[{"label":"pitch","natural_frequency_hz":1e308},{"label":"pitch","natural_frequency_hz":0}]}`))
-	setup, err := ingest.LoadSetup(exampleSetup)
+	setup, err := ingest.LoadSetup("../testdata/example/hatchback.toml")
 	if err != nil {
 		f.Fatal(err)
 	}
@@ -28,11 +28,11 @@ func FuzzCompareModes(f *testing.F) {
 		if err := os.WriteFile(path, data, 0o644); err != nil {
 			t.Fatal(err)
 		}
-		m, err := readModes(path)
+		m, err := compare.ReadModesFile(path)
 		if err != nil {
 			return
 		}
 		res := &compare.Result{Modes: m.Modes}
-		_, _ = assess(res, setup)
+		_, _ = res.AssessAgainst(setup)
 	})
 }

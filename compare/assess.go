@@ -1,0 +1,64 @@
+package compare
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/ridemodes/ridemodes/identify/body"
+	"github.com/ridemodes/ridemodes/ingest"
+)
+
+// ModelMethod names the solver behind the model's modes.
+func ModelMethod(damped bool) string {
+	if damped {
+		return "damped state-space eigenproblem"
+	}
+	return "undamped eigenproblem"
+}
+
+// ModelPart is the model part of a result: the design model's modes.
+func ModelPart(modes []Mode, damped bool) *ModelJSON {
+	m := &ModelJSON{Damped: damped}
+	for _, md := range modes {
+		m.Modes = append(m.Modes, md.JSON("design model, "+ModelMethod(damped)))
+	}
+	return m
+}
+
+// MeasuredJSON writes one identified mode in the contract's form, with its
+// shape at the sensors at posM (m from the CG, positive forward) and the
+// method that found it.
+func MeasuredJSON(m body.Mode, posM []float64, method string) ModeJSON {
+	j := ModeJSON{Label: m.Label, NaturalFrequencyHz: m.NaturalFrequencyHz,
+		NaturalFrequencyRadPerS: 2 * math.Pi * m.NaturalFrequencyHz, DampedFrequencyHz: m.DampedFrequencyHz,
+		DampingRatio: m.DampingRatio, PitchPerBounceRadPerM: Finite(m.PitchPerBounceRadPerM), NodeM: Finite(m.NodeM),
+		Method: method,
+		Uncertainty: &Uncertainty{NaturalFrequencyHz: m.SD.NaturalFrequencyHz, DampingRatio: m.SD.DampingRatio,
+			PitchPerBounceRadPerM: Finite(m.SD.PitchPerBounceRadPerM), NodeM: Finite(m.SD.NodeM)}}
+	for i, w := range m.Shape {
+		j.SensorShape = append(j.SensorShape, SensorShapeJSON{XM: posM[i], Re: real(w), Im: imag(w)})
+	}
+	return j
+}
+
+// AssessAgainst adds to a result that holds measured modes the design
+// model of setup, the comparison, the back-calculated rates and the checks
+// (Assess); it reports whether a [targets] check failed.
+func (r *Result) AssessAgainst(setup *ingest.Setup) (failed bool, err error) {
+	design := DesignOf(setup.Vehicle)
+	model, err := design.Modes()
+	if err != nil {
+		return false, fmt.Errorf("%s: %w", setup.Path, err)
+	}
+	r.Model = ModelPart(model, design.Damped())
+	measured, err := MeasuredFromJSON(r.Modes)
+	if err != nil {
+		return false, err
+	}
+	a, err := Assess(measured, setup)
+	if err != nil {
+		return false, err
+	}
+	a.Fill(r)
+	return a.AnyFailed, nil
+}

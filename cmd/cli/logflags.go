@@ -2,6 +2,7 @@ package cli
 
 import (
 	"fmt"
+	"io"
 	"math"
 	"os"
 
@@ -20,9 +21,11 @@ type logFlags struct {
 	bandHighHz   float64
 	segment      int
 	window       string
+	errOut       func() io.Writer // the command's ErrOrStderr, for the progress bar
 }
 
 func (f *logFlags) register(cmd *cobra.Command) {
+	f.errOut = cmd.ErrOrStderr
 	fl := cmd.Flags()
 	fl.Float64Var(&f.startS, "start", 0, "analyse from this time in s, counted from the log's first sample")
 	fl.Float64Var(&f.endS, "end", 0, "analyse up to this time in s (0: to the end of the log)")
@@ -98,8 +101,8 @@ func channelsOf(setup *ingest.Setup) []string {
 }
 
 // openLog opens a log for the setup's channels with the shared options and a
-// progress bar on a terminal. The caller closes the reader and calls done.
-// It refuses a band that is upside down, so every later stage gets a valid one.
+// progress bar when the command's stderr is a terminal. The caller closes the
+// reader and calls done. It refuses a band that is upside down, so every later stage gets a valid one.
 func (f *logFlags) openLog(path string, setup *ingest.Setup) (*ingest.Reader, func(), error) {
 	lo, hi := f.band(setup)
 	if !(lo > 0 && hi > lo) || math.IsInf(hi, 0) {
@@ -118,7 +121,7 @@ func (f *logFlags) openLog(path string, setup *ingest.Setup) (*ingest.Reader, fu
 	}
 	done := func() {}
 	if st, err := os.Stat(path); err == nil {
-		opt.Progress, done = ingest.TerminalProgress(st.Size(), "reading "+path)
+		opt.Progress, done = terminalProgress(f.errOut(), st.Size(), "reading "+path)
 	}
 	r, err := ingest.Open(path, opt)
 	if err != nil {

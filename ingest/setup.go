@@ -14,7 +14,9 @@ import (
 )
 
 // Setup is a validated setup file: the vehicle's design model, the body
-// sensors, the rig inputs and the analysis options, all in SI units.
+// sensors, the rig inputs and the analysis options, all in SI units. A
+// design-stage setup may hold [vehicle] alone (no Sensors, no Inputs); code
+// that reads a log calls CheckForLog first.
 type Setup struct {
 	Path     string
 	Vehicle  VehicleSpec
@@ -371,8 +373,11 @@ func (v *validator) setup(raw *rawSetup) *Setup {
 		seen[c] = strings.TrimSuffix(key, ".channel")
 		return c
 	}
-	if len(raw.Sensor) < 2 {
-		v.fail("sensor", "", "%d [[sensor]] tables; give at least two body accelerometers at different x_m", len(raw.Sensor))
+	// A design-stage setup may give no sensors at all (CheckForLog asks for
+	// them where a log is read); rig inputs make sense only beside sensors.
+	if len(raw.Sensor) == 0 && len(raw.Input) > 0 {
+		v.fail("input", "input[1]", "[[input]] tables without [[sensor]] tables; a rig log needs two or more "+
+			"body accelerometers: add [[sensor]] tables with channel and x_m, or remove the [[input]] tables")
 	}
 	for i, rs := range raw.Sensor {
 		key := fmt.Sprintf("sensor[%d]", i+1)
@@ -476,6 +481,20 @@ func (v *validator) setup(raw *rawSetup) *Setup {
 		s.Update.FreePitchInertia = *ru.FreePitchInertia
 	}
 	return s
+}
+
+// CheckForLog returns a *SetupError unless the setup has what reading a log
+// needs: two or more [[sensor]] tables (ParseSetup already checked that each
+// has a channel and an x_m, and that their positions differ). A design-stage
+// setup with only [vehicle] serves the model and the comparison, not a log.
+func (s *Setup) CheckForLog() error {
+	if len(s.Sensors) >= 2 {
+		return nil
+	}
+	return &SetupError{Path: s.Path, Key: "sensor", Msg: fmt.Sprintf(
+		"reading or simulating a log needs two or more [[sensor]] tables, each with channel (the log column) and "+
+			"x_m (m, positive forward of the CG), found %d; add one per body accelerometer, "+
+			`e.g. [[sensor]] with channel = "body_front" and x_m = 1.05`, len(s.Sensors))}
 }
 
 // optionalPositive checks an optional positive value; NaN when absent.

@@ -102,8 +102,12 @@ func channelsOf(setup *ingest.Setup) []string {
 
 // openLog opens a log for the setup's channels with the shared options and a
 // progress bar when the command's stderr is a terminal. The caller closes the
-// reader and calls done. It refuses a band that is upside down, so every later stage gets a valid one.
+// reader and calls done. It refuses a setup without sensors and a band that
+// is upside down, so every later stage gets a valid one.
 func (f *logFlags) openLog(path string, setup *ingest.Setup) (*ingest.Reader, func(), error) {
+	if err := setup.CheckForLog(); err != nil {
+		return nil, nil, err
+	}
 	lo, hi := f.band(setup)
 	if !(lo > 0 && hi > lo) || math.IsInf(hi, 0) {
 		return nil, nil, usageError{fmt.Errorf("the analysis band %g-%g Hz needs 0 < low < high (--band-low, --band-high or [analysis])", lo, hi)}

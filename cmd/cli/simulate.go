@@ -49,6 +49,9 @@ byte for byte. Synthetic logs are not measurements.
 			if err != nil {
 				return err
 			}
+			if err := setup.CheckForLog(); err != nil {
+				return err
+			}
 			if sameFile(outPath, setupPath) {
 				return usageError{fmt.Errorf("--out %s would overwrite the setup file", outPath)}
 			}

@@ -118,7 +118,9 @@ type Input struct {
 	Axle    string // "front" or "rear"
 }
 
-// Analysis is the [analysis] table. Zero values mean "choose from the data".
+// Analysis is the [analysis] table. Zero values mean "choose from the data"
+// or, for the band and the window, the defaults DefaultBandLowHz,
+// DefaultBandHighHz and DefaultWindow.
 type Analysis struct {
 	SampleRateHz float64 // for logs without a time column
 	BandLowHz    float64
@@ -546,7 +548,20 @@ func (v *validator) rideRate(axle string, ride, spring, ratio, tyre *float64) (f
 	return b.RideRateNPerM(), b
 }
 
-// Windows lists the spectral window names a setup may give.
+// Defaults of the [analysis] table, for both tests and the command line.
+//
+// The band: body bounce and pitch of road vehicles lie in about 0.8-2.5 Hz
+// (common practice; Gillespie 1992 gives 1-1.5 Hz for passenger cars and up
+// to 2.5 Hz for sports cars [memory]); the band leaves room on both sides
+// for the fits' residual terms.
+const (
+	DefaultBandLowHz  = 0.5
+	DefaultBandHighHz = 4.0
+	DefaultWindow     = "hann"
+)
+
+// Windows lists the spectral window names a setup may give (package
+// identify maps them to spectral windows).
 var Windows = []string{"hann", "hamming", "flattop", "rectangular"}
 
 // KnownWindow reports whether name is in Windows.

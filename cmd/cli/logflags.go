@@ -5,11 +5,11 @@ import (
 	"io"
 	"math"
 	"os"
+	"strings"
 
 	"github.com/spf13/cobra"
 
 	"github.com/ridemodes/ridemodes/identify"
-	"github.com/ridemodes/ridemodes/identify/spectral"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
@@ -30,16 +30,16 @@ func (f *logFlags) register(cmd *cobra.Command) {
 	fl.Float64Var(&f.startS, "start", 0, "analyse from this time in s, counted from the log's first sample")
 	fl.Float64Var(&f.endS, "end", 0, "analyse up to this time in s (0: to the end of the log)")
 	fl.BoolVar(&f.resample, "resample", false, "accept jittery time steps and resample onto a uniform grid (warns)")
-	fl.Float64Var(&f.bandLowHz, "band-low", 0, "analysis band, lower edge in Hz (default from [analysis], else 0.5)")
-	fl.Float64Var(&f.bandHighHz, "band-high", 0, "analysis band, upper edge in Hz (default from [analysis], else 4)")
+	fl.Float64Var(&f.bandLowHz, "band-low", 0, fmt.Sprintf("analysis band, lower edge in Hz (default from [analysis], else %g)", ingest.DefaultBandLowHz))
+	fl.Float64Var(&f.bandHighHz, "band-high", 0, fmt.Sprintf("analysis band, upper edge in Hz (default from [analysis], else %g)", ingest.DefaultBandHighHz))
 	fl.IntVar(&f.segment, "segment", 0, "Welch segment length in samples after decimation, a power of two (default from [analysis], else chosen from the damping)")
-	fl.StringVar(&f.window, "window", "", "spectral window: hann, hamming, flattop or rectangular (default from [analysis], else hann)")
+	fl.StringVar(&f.window, "window", "", "spectral window: "+strings.Join(ingest.Windows, ", ")+" (default from [analysis], else "+ingest.DefaultWindow+")")
 	cmd.RegisterFlagCompletionFunc("window", cobra.FixedCompletions(ingest.Windows, cobra.ShellCompDirectiveNoFileComp))
 }
 
 // band returns the analysis band: flags over [analysis] over the defaults.
 func (f *logFlags) band(setup *ingest.Setup) (lo, hi float64) {
-	lo, hi = identify.DefaultBandLowHz, identify.DefaultBandHighHz
+	lo, hi = ingest.DefaultBandLowHz, ingest.DefaultBandHighHz
 	if setup.Analysis.BandLowHz > 0 {
 		lo = setup.Analysis.BandLowHz
 	}
@@ -62,30 +62,15 @@ func (f *logFlags) frfOptions(setup *ingest.Setup) (identify.FRFOptions, error) 
 	if f.window != "" {
 		name = f.window
 	}
-	w, err := windowNamed(name)
+	w, err := identify.WindowNamed(name)
 	if err != nil {
-		return identify.FRFOptions{}, err
+		return identify.FRFOptions{}, usageError{err}
 	}
 	seg := setup.Analysis.SegmentSamples
 	if f.segment != 0 {
 		seg = f.segment
 	}
 	return identify.FRFOptions{BandLowHz: lo, BandHighHz: hi, SegmentLen: seg, Window: w}, nil
-}
-
-// windowNamed maps the setup's window names to the spectral package's windows.
-func windowNamed(name string) (spectral.Window, error) {
-	switch name {
-	case "", "hann":
-		return spectral.Window{Kind: spectral.Hann}, nil
-	case "hamming":
-		return spectral.Window{Kind: spectral.Hamming}, nil
-	case "flattop":
-		return spectral.Window{Kind: spectral.FlatTop}, nil
-	case "rectangular":
-		return spectral.Window{Kind: spectral.Rectangular}, nil
-	}
-	return spectral.Window{}, usageError{fmt.Errorf("unknown window %q; use one of hann, hamming, flattop, rectangular", name)}
 }
 
 // channelsOf lists the log channels a setup reads: inputs first, then sensors.

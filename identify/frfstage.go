@@ -10,13 +10,7 @@ import (
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
-// Default analysis band: body bounce and pitch of road vehicles lie in about
-// 0.8-2.5 Hz (common practice; Gillespie 1992 gives 1-1.5 Hz for passenger
-// cars and up to 2.5 Hz for sports cars [memory]); the band leaves room on
-// both sides for the fit's residual terms.
 const (
-	DefaultBandLowHz  = 0.5
-	DefaultBandHighHz = 4.0
 	// spectraSpan is how far above the band the spectra are kept (for plots
 	// and the out-of-band residuals): the decimator keeps spectraSpan times
 	// the band's upper edge.
@@ -35,6 +29,24 @@ type FRFOptions struct {
 	// MaxResolutionBias bounds the expected resolution bias at the peak when
 	// the segment length is chosen (0: DefaultFitResolutionBias).
 	MaxResolutionBias float64
+}
+
+// WindowNamed returns the spectral window a setup's [analysis] window or the
+// command line names: one of ingest.Windows, which are the spectral windows'
+// own names (Window.String); "" is ingest.DefaultWindow. An unknown name is
+// an error that lists the valid ones.
+func WindowNamed(name string) (spectral.Window, error) {
+	if name == "" {
+		name = ingest.DefaultWindow
+	}
+	if ingest.KnownWindow(name) {
+		for _, k := range []spectral.WindowKind{spectral.Hann, spectral.Hamming, spectral.FlatTop, spectral.Rectangular} {
+			if w := (spectral.Window{Kind: k}); w.String() == name {
+				return w, nil
+			}
+		}
+	}
+	return spectral.Window{}, fmt.Errorf("unknown window %q; use one of %s", name, strings.Join(ingest.Windows, ", "))
 }
 
 // DefaultFitResolutionBias is the expected resolution bias allowed when the
@@ -62,10 +74,10 @@ const fitMinAverages = 8
 
 func (o *FRFOptions) defaults() error {
 	if o.BandLowHz == 0 {
-		o.BandLowHz = DefaultBandLowHz
+		o.BandLowHz = ingest.DefaultBandLowHz
 	}
 	if o.BandHighHz == 0 {
-		o.BandHighHz = DefaultBandHighHz
+		o.BandHighHz = ingest.DefaultBandHighHz
 	}
 	if o.MaxResolutionBias == 0 {
 		o.MaxResolutionBias = DefaultFitResolutionBias

@@ -152,3 +152,27 @@ func TestStageH1WithinItsErrorBands(t *testing.T) {
 		}
 	}
 }
+
+// Every window name a setup accepts maps to the spectral window of that name,
+// "" to the default, and an unknown name is an error listing all of them.
+func TestWindowNamed(t *testing.T) {
+	for _, name := range append([]string{""}, ingest.Windows...) {
+		w, err := WindowNamed(name)
+		want := name
+		if name == "" {
+			want = ingest.DefaultWindow
+		}
+		if err != nil || w.String() != want {
+			t.Errorf("WindowNamed(%q) = %v, %v; want the %s window", name, w, err, want)
+		}
+	}
+	_, err := WindowNamed("blackmanish")
+	if err == nil {
+		t.Fatal("no error for an unknown window")
+	}
+	for _, name := range append([]string{"blackmanish"}, ingest.Windows...) {
+		if !strings.Contains(err.Error(), name) {
+			t.Errorf("message lacks %q: %v", name, err)
+		}
+	}
+}

@@ -52,7 +52,7 @@ type Options struct {
 
 	// Progress, when not nil, is called as the file is read (about every
 	// MiB and once at the end) with the bytes read so far and the total size
-	// (-1 when unknown). See TerminalProgress for a ready-made bar.
+	// (-1 when unknown). The package itself never writes to a terminal.
 	Progress func(readBytes, totalBytes int64)
 }
 

@@ -14,8 +14,6 @@ import (
 	"strings"
 	"testing"
 	"time"
-
-	"golang.org/x/term"
 )
 
 // readString reads a log held in a string, as "test.csv".
@@ -494,19 +492,5 @@ func TestStreamStopsItsGoroutines(t *testing.T) {
 	}
 	if n := runtime.NumGoroutine(); n > base {
 		t.Errorf("%d goroutines left running (%d before)", n, base)
-	}
-}
-
-// Under go test stderr is not a terminal: the progress bar stays silent.
-func TestTerminalProgressSilent(t *testing.T) {
-	for _, size := range []int64{1 << 10, 1 << 30} {
-		fn, done := TerminalProgress(size, "reading x")
-		if fn != nil && !term.IsTerminal(int(os.Stderr.Fd())) {
-			t.Errorf("size %d: a bar on a non-terminal stderr", size)
-		}
-		done()
-	}
-	if fn, _ := TerminalProgress(1<<10, "small"); fn != nil {
-		t.Error("a bar for a 1 KiB file")
 	}
 }

@@ -14,7 +14,9 @@ import (
 )
 
 // Setup is a validated setup file: the vehicle's design model, the body
-// sensors, the rig inputs and the analysis options, all in SI units.
+// sensors, the rig inputs and the analysis options, all in SI units. A
+// design-stage setup may hold [vehicle] alone (no Sensors, no Inputs); code
+// that reads a log calls CheckForLog first.
 type Setup struct {
 	Path     string
 	Vehicle  VehicleSpec
@@ -116,7 +118,9 @@ type Input struct {
 	Axle    string // "front" or "rear"
 }
 
-// Analysis is the [analysis] table. Zero values mean "choose from the data".
+// Analysis is the [analysis] table. Zero values mean "choose from the data"
+// or, for the band and the window, the defaults DefaultBandLowHz,
+// DefaultBandHighHz and DefaultWindow.
 type Analysis struct {
 	SampleRateHz float64 // for logs without a time column
 	BandLowHz    float64
@@ -371,8 +375,11 @@ func (v *validator) setup(raw *rawSetup) *Setup {
 		seen[c] = strings.TrimSuffix(key, ".channel")
 		return c
 	}
-	if len(raw.Sensor) < 2 {
-		v.fail("sensor", "", "%d [[sensor]] tables; give at least two body accelerometers at different x_m", len(raw.Sensor))
+	// A design-stage setup may give no sensors at all (CheckForLog asks for
+	// them where a log is read); rig inputs make sense only beside sensors.
+	if len(raw.Sensor) == 0 && len(raw.Input) > 0 {
+		v.fail("input", "input[1]", "[[input]] tables without [[sensor]] tables; a rig log needs two or more "+
+			"body accelerometers: add [[sensor]] tables with channel and x_m, or remove the [[input]] tables")
 	}
 	for i, rs := range raw.Sensor {
 		key := fmt.Sprintf("sensor[%d]", i+1)
@@ -478,6 +485,20 @@ func (v *validator) setup(raw *rawSetup) *Setup {
 	return s
 }
 
+// CheckForLog returns a *SetupError unless the setup has what reading a log
+// needs: two or more [[sensor]] tables (ParseSetup already checked that each
+// has a channel and an x_m, and that their positions differ). A design-stage
+// setup with only [vehicle] serves the model and the comparison, not a log.
+func (s *Setup) CheckForLog() error {
+	if len(s.Sensors) >= 2 {
+		return nil
+	}
+	return &SetupError{Path: s.Path, Key: "sensor", Msg: fmt.Sprintf(
+		"reading or simulating a log needs two or more [[sensor]] tables, each with channel (the log column) and "+
+			"x_m (m, positive forward of the CG), found %d; add one per body accelerometer, "+
+			`e.g. [[sensor]] with channel = "body_front" and x_m = 1.05`, len(s.Sensors))}
+}
+
 // optionalPositive checks an optional positive value; NaN when absent.
 func (v *validator) optionalPositive(p *float64, table, key, what string) float64 {
 	if p == nil {
@@ -527,7 +548,20 @@ func (v *validator) rideRate(axle string, ride, spring, ratio, tyre *float64) (f
 	return b.RideRateNPerM(), b
 }
 
-// Windows lists the spectral window names a setup may give.
+// Defaults of the [analysis] table, for both tests and the command line.
+//
+// The band: body bounce and pitch of road vehicles lie in about 0.8-2.5 Hz
+// (common practice; Gillespie 1992 gives 1-1.5 Hz for passenger cars and up
+// to 2.5 Hz for sports cars [memory]); the band leaves room on both sides
+// for the fits' residual terms.
+const (
+	DefaultBandLowHz  = 0.5
+	DefaultBandHighHz = 4.0
+	DefaultWindow     = "hann"
+)
+
+// Windows lists the spectral window names a setup may give (package
+// identify maps them to spectral windows).
 var Windows = []string{"hann", "hamming", "flattop", "rectangular"}
 
 // KnownWindow reports whether name is in Windows.

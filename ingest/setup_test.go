@@ -2,6 +2,7 @@ package ingest
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -84,7 +85,7 @@ func TestParseBadSetups(t *testing.T) {
 		{"input reusing a sensor channel", []edit{{"channel = \"pr\"", "channel = \"br\""}}, 22, "input[2].channel", "already used"},
 		{"bad axle", []edit{{"axle = \"rear\"", "axle = \"middle\""}}, 23, "input[2].axle", "front"},
 		{"one input only", []edit{{"axle = \"rear\"", "axle = \"front\""}}, 17, "input", "front and a rear"},
-		{"one sensor only", []edit{{"[[sensor]]\nchannel = \"br\"\nx_m = -1.2\n", ""}}, 0, "sensor", "at least two"},
+		{"inputs without sensors", []edit{{"[[sensor]]\nchannel = \"bf\"\nx_m = 0.9\n\n[[sensor]]\nchannel = \"br\"\nx_m = -1.2\n", ""}}, 10, "input", "without [[sensor]]"},
 		{"sensors at one position", []edit{{"x_m = -1.2", "x_m = 0.9"}}, 15, "sensor[2].x_m", "same x_m"},
 		{"no vehicle table", []edit{{"[vehicle]", "[car]"}}, 1, "car", "unknown key"},
 		{"wrong type", []edit{{"mass_kg = 1400", `mass_kg = "heavy"`}}, 2, "vehicle.mass_kg", "type"},
@@ -126,13 +127,57 @@ func TestParseBadSetups(t *testing.T) {
 	}
 }
 
+// A design-stage setup gives [vehicle] alone: it loads, and CheckForLog
+// refuses it (and a one-sensor setup) with a message naming the file and
+// what to add.
+func TestVehicleOnlySetup(t *testing.T) {
+	vehicleOnly := goodSetup[:strings.Index(goodSetup, "[[sensor]]")]
+	oneSensor := goodSetup[:strings.Index(goodSetup, "[[sensor]]\nchannel = \"br\"")]
+	for _, c := range []struct {
+		name, text string
+		sensors    int
+	}{{"vehicle only", vehicleOnly, 0}, {"one sensor", oneSensor, 1}} {
+		t.Run(c.name, func(t *testing.T) {
+			s, err := ParseSetup("design.toml", []byte(c.text))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if s.Vehicle.MassKg != 1400 || len(s.Sensors) != c.sensors || len(s.Inputs) != 0 {
+				t.Fatalf("parsed %+v", s)
+			}
+			err = s.CheckForLog()
+			var se *SetupError
+			if !errors.As(err, &se) || !errors.Is(err, ErrSetup) || se.Key != "sensor" {
+				t.Fatalf("CheckForLog: %v (%T), want a *SetupError for key sensor", err, err)
+			}
+			msg := err.Error()
+			for _, want := range []string{"design.toml: sensor: ", "two or more [[sensor]] tables", "channel", "x_m", fmt.Sprintf("found %d", c.sensors)} {
+				if !strings.Contains(msg, want) {
+					t.Errorf("message lacks %q: %s", want, msg)
+				}
+			}
+			if strings.Contains(msg, "\n") {
+				t.Errorf("message spans lines: %q", msg)
+			}
+		})
+	}
+	s, err := ParseSetup("car.toml", []byte(goodSetup))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := s.CheckForLog(); err != nil {
+		t.Errorf("CheckForLog on a full setup: %v", err)
+	}
+}
+
 func FuzzParseSetup(f *testing.F) {
 	f.Add([]byte(goodSetup))
 	f.Add([]byte("[vehicle]\nmass_kg = 1\n[[sensor]]\n"))
 	f.Add([]byte("[[sensor]]\n[[sensor]]\nchannel = 'a'\nx_m = inf\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		s, err := ParseSetup("fuzz.toml", data)
-		if err == nil && (s.Vehicle.MassKg <= 0 || len(s.Sensors) < 2) {
+		if err == nil && (s.Vehicle.MassKg <= 0 || (len(s.Inputs) > 0 && len(s.Sensors) == 0) ||
+			(len(s.Sensors) < 2) != (s.CheckForLog() != nil)) {
 			t.Fatalf("accepted an invalid setup: %+v", s)
 		}
 		if err != nil && !errors.Is(err, ErrSetup) {

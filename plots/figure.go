@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"image/color"
 	"math"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -16,6 +15,8 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 	"gonum.org/v1/plot/vg/vgsvg"
+
+	"github.com/ridemodes/ridemodes/ingest"
 )
 
 // PNGDotsPerInch is the resolution of PNG figures. A figure of width w

@@ -149,7 +149,7 @@ func TestDemo(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("demo: exit %d\n%s\n%s", code, out, errs)
 	}
-	for _, f := range []string{"design.toml", "design-drop.toml", "built.toml", "rig.csv", "drop.csv",
+	for _, f := range []string{"design.toml", "built.toml", "rig.csv", "drop.csv",
 		"result.json", "drop-result.json", "report/report.html", "drop-report/report.html"} {
 		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
 			t.Errorf("demo did not write %s", f)

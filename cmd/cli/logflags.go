@@ -6,7 +6,6 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/ridemodes/ridemodes/compare/job"
-	"github.com/ridemodes/ridemodes/identify/spectral"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
@@ -25,7 +24,7 @@ func registerLogFlags(cmd *cobra.Command, o *job.Options) {
 	fl.StringVar(&o.Window, "window", "", "spectral window: hann, hamming, flattop or rectangular (default from [analysis], else hann)")
 	cmd.MarkFlagRequired("setup")
 	cmd.MarkFlagFilename("setup", "toml")
-	cmd.RegisterFlagCompletionFunc("window", cobra.FixedCompletions(spectral.WindowNames, cobra.ShellCompDirectiveNoFileComp))
+	cmd.RegisterFlagCompletionFunc("window", cobra.FixedCompletions(ingest.Windows, cobra.ShellCompDirectiveNoFileComp))
 	cmd.RegisterFlagCompletionFunc("test", cobra.FixedCompletions([]string{"rig", "drop"}, cobra.ShellCompDirectiveNoFileComp))
 	o.ToolVersion = version()
 	o.Progress = func(path string, size int64) (func(int64, int64), func()) {

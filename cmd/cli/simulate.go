@@ -49,6 +49,9 @@ byte for byte. Synthetic logs are not measurements.
 			if err != nil {
 				return err
 			}
+			if err := setup.CheckForLog(); err != nil {
+				return err
+			}
 			if err := outputGuard("out", outPath, setupPath); err != nil {
 				return err
 			}

@@ -35,7 +35,7 @@ type Options struct {
 	// SegmentSamples is the rig route's Welch segment length after
 	// decimation (a power of two; 0: chosen from the damping).
 	SegmentSamples int
-	// Window names the rig route's spectral window (see spectral.WindowNames).
+	// Window names the rig route's spectral window (one of ingest.Windows).
 	Window string
 	// MaxModelOrder is the highest model order of the fit's sweep (even, at
 	// least 4; 0: the method's own).
@@ -98,7 +98,7 @@ func (o *Options) resolve() (*plan, error) {
 	if err != nil {
 		return nil, &OptionError{err}
 	}
-	p := &plan{setup: setup, test: test, loHz: identify.DefaultBandLowHz, hiHz: identify.DefaultBandHighHz,
+	p := &plan{setup: setup, test: test, loHz: ingest.DefaultBandLowHz, hiHz: ingest.DefaultBandHighHz,
 		segment: setup.Analysis.SegmentSamples, order: setup.Analysis.MaxModelOrder}
 	for _, x := range []float64{setup.Analysis.BandLowHz, o.BandLowHz} {
 		if x > 0 {
@@ -132,7 +132,7 @@ func (o *Options) resolve() (*plan, error) {
 	if o.Window != "" {
 		name = o.Window
 	}
-	if p.window, err = spectral.WindowNamed(name); err != nil {
+	if p.window, err = identify.WindowNamed(name); err != nil {
 		return nil, &OptionError{err}
 	}
 	return p, nil

@@ -12,13 +12,12 @@ import (
 	"github.com/ridemodes/ridemodes/identify/body"
 	"github.com/ridemodes/ridemodes/identify/lsq"
 	"github.com/ridemodes/ridemodes/identify/spectral"
+	"github.com/ridemodes/ridemodes/ingest"
 )
 
 // Fit defaults and limits.
 const (
-	DefaultBandLowHz  = 0.5
-	DefaultBandHighHz = 4
-	DefaultMaxOrder   = 20
+	DefaultMaxOrder = 20
 	// DefaultSettleS is the time after the release (after the last step of
 	// the pans, when there are several) that is left out of the fit. The
 	// release is not free decay: in a real drop the wheels fall onto the
@@ -44,7 +43,7 @@ const (
 // Options set the fit. Zero values take the defaults.
 type Options struct {
 	// BandLowHz and BandHighHz bound the natural frequencies of the body
-	// modes (defaults DefaultBandLowHz, DefaultBandHighHz).
+	// modes (defaults ingest.DefaultBandLowHz, ingest.DefaultBandHighHz).
 	BandLowHz, BandHighHz float64
 	// Event is the index (from 0) of the event to analyse; default the first.
 	Event int
@@ -61,7 +60,7 @@ type Options struct {
 
 func (o Options) withDefaults() Options {
 	if o.BandLowHz == 0 && o.BandHighHz == 0 {
-		o.BandLowHz, o.BandHighHz = DefaultBandLowHz, DefaultBandHighHz
+		o.BandLowHz, o.BandHighHz = ingest.DefaultBandLowHz, ingest.DefaultBandHighHz
 	}
 	if o.MaxOrder == 0 {
 		o.MaxOrder = DefaultMaxOrder

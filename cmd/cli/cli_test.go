@@ -225,47 +225,6 @@ func TestSimulateRollOffDrop(t *testing.T) {
 	}
 }
 
-// designOnly is a design-stage setup: [vehicle] alone (an invented car).
-const designOnly = `[vehicle]
-mass_kg = 1340
-pitch_inertia_kgm2 = 1850
-cg_to_front_axle_m = 1.05
-cg_to_rear_axle_m = 1.55
-front_rate_n_per_m = 42000
-rear_rate_n_per_m = 41000
-`
-
-// TestDesignOnlySetup: model and compare need [vehicle] alone; reading a
-// log with such a setup is refused with a message that asks for sensors.
-func TestDesignOnlySetup(t *testing.T) {
-	dir := t.TempDir()
-	design := filepath.Join(dir, "design.toml")
-	if err := os.WriteFile(design, []byte(designOnly), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	if code, out, errs := run(t, "model", "--setup", design); code != exitOK || !strings.Contains(out, "bounce") {
-		t.Fatalf("model: exit %d\n%s\n%s", code, out, errs)
-	}
-	modes := filepath.Join(dir, "modes.json")
-	if err := os.WriteFile(modes, []byte(`{"modes":[{"label":"bounce","natural_frequency_hz":1.22},{"label":"pitch","natural_frequency_hz":1.50}]}`), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	out := filepath.Join(dir, "compared.json")
-	if code, stdout, errs := run(t, "compare", "--modes", modes, "--setup", design, "--json", out); code != exitOK {
-		t.Fatalf("compare: exit %d\n%s\n%s", code, stdout, errs)
-	}
-	if res := readResult(t, out); res.Updated == nil || len(res.Comparison) != 2 {
-		t.Errorf("compare on a design-only setup: %+v", res)
-	}
-	logPath := filepath.Join(dir, "rig.csv")
-	if code, _, errs := run(t, "simulate", "--setup", exampleSetup, "--test", "rig", "--out", logPath, "--duration", "120"); code != exitOK {
-		t.Fatal(errs)
-	}
-	if code, _, errs := run(t, "analyze", logPath, "--setup", design); code != exitData || !strings.Contains(errs, "[[sensor]]") {
-		t.Errorf("analyze with a design-only setup: exit %d, %s", code, errs)
-	}
-}
-
 // TestOneSetupForBothTests: the car's rig setup reads its drop log with
 // --test drop; without the flag the error names it.
 func TestOneSetupForBothTests(t *testing.T) {

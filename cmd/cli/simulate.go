@@ -45,47 +45,7 @@ byte for byte. Synthetic logs are not measurements.
   ridemodes simulate --setup car.toml --test drop --out rolled.csv --rear-delay 0.5`,
 		Args: usageArgs(cobra.NoArgs),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			setup, err := ingest.LoadSetup(setupPath)
-			if err != nil {
-				return err
-			}
-			if err := setup.CheckForLog(); err != nil {
-				return err
-			}
-			if err := outputGuard("out", outPath, setupPath); err != nil {
-				return err
-			}
-			if err := testOnlyFlags(cmd, test); err != nil {
-				return err
-			}
-			v := compare.DesignOf(setup.Vehicle)
-			var log *simulate.Log
-			switch test {
-			case "rig":
-				log, err = simulate.Rig(v, setup.Sensors, setup.Inputs, o)
-			case "drop":
-				// The shared flags apply to a drop too; its duration keeps the drop default unless given.
-				dd := d
-				dd.Seed, dd.NoiseFraction, dd.OffsetMPerS2, dd.Units, dd.RateHz = o.Seed, o.NoiseFraction, o.OffsetMPerS2, o.Units, o.RateHz
-				if cmd.Flags().Changed("duration") {
-					dd.DurationS = o.DurationS
-				}
-				log, err = simulate.Drop(v, setup.Sensors, dd)
-			default:
-				return usageError{fmt.Errorf(`--test must be "rig" or "drop" (got %q)`, test)}
-			}
-			if err != nil {
-				return err
-			}
-			if err := ingest.WriteAtomic(outPath, func(w io.Writer) error {
-				return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-			}); err != nil {
-				return err
-			}
-			n := len(log.Columns[0].Data)
-			fmt.Fprintf(cmd.OutOrStdout(), "wrote %s: %s test, %d channels, %d samples at %g Hz (%.1f s)\n",
-				outPath, test, len(log.Columns), n, log.RateHz, float64(n)/log.RateHz)
-			return nil
+			return runSimulate(cmd, setupPath, test, outPath, o, d)
 		},
 	}
 	f := cmd.Flags()
@@ -133,5 +93,51 @@ func testOnlyFlags(cmd *cobra.Command, test string) error {
 			return usageError{fmt.Errorf("--%s does not apply to a %s test (see %s --help)", name, test, cmd.CommandPath())}
 		}
 	}
+	return nil
+}
+
+// runSimulate writes the log of a test simulated with the rig options o or
+// the drop options d (the shared flags land in o).
+func runSimulate(cmd *cobra.Command, setupPath, test, outPath string, o, d simulate.Options) error {
+	setup, err := ingest.LoadSetup(setupPath)
+	if err != nil {
+		return err
+	}
+	if err := setup.CheckForLog(); err != nil {
+		return err
+	}
+	if err := outputGuard("out", outPath, setupPath); err != nil {
+		return err
+	}
+	if err := testOnlyFlags(cmd, test); err != nil {
+		return err
+	}
+	v := compare.DesignOf(setup.Vehicle)
+	var log *simulate.Log
+	switch test {
+	case "rig":
+		log, err = simulate.Rig(v, setup.Sensors, setup.Inputs, o)
+	case "drop":
+		// The shared flags apply to a drop too; its duration keeps the drop default unless given.
+		dd := d
+		dd.Seed, dd.NoiseFraction, dd.OffsetMPerS2, dd.Units, dd.RateHz = o.Seed, o.NoiseFraction, o.OffsetMPerS2, o.Units, o.RateHz
+		if cmd.Flags().Changed("duration") {
+			dd.DurationS = o.DurationS
+		}
+		log, err = simulate.Drop(v, setup.Sensors, dd)
+	default:
+		return usageError{fmt.Errorf(`--test must be "rig" or "drop" (got %q)`, test)}
+	}
+	if err != nil {
+		return err
+	}
+	if err := ingest.WriteAtomic(outPath, func(w io.Writer) error {
+		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
+	}); err != nil {
+		return err
+	}
+	n := len(log.Columns[0].Data)
+	fmt.Fprintf(cmd.OutOrStdout(), "wrote %s: %s test, %d channels, %d samples at %g Hz (%.1f s)\n",
+		outPath, test, len(log.Columns), n, log.RateHz, float64(n)/log.RateHz)
 	return nil
 }

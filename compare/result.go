@@ -21,6 +21,10 @@ type Result struct {
 	Updated    *Updated     `json:"updated,omitempty"`
 	Checks     []Check      `json:"checks,omitempty"`
 	Warnings   []string     `json:"warnings"`
+	// Runs and Pooling describe a pooled analysis of several logs (then Log
+	// is left out); a single log leaves them out.
+	Runs    []RunJSON    `json:"runs,omitempty"`
+	Pooling *PoolingJSON `json:"pooling,omitempty"`
 }
 
 // Analysis records how the modes were identified: the band, the choices

@@ -20,10 +20,13 @@ const bandErrorSDs = 2
 // the figures its route's data allow.
 func OutcomeReport(o *job.Outcome) ReportInput {
 	in := ReportInput{
-		Title:   "Body bounce and pitch: " + o.Result.Test + " test",
+		Title:   "Body bounce and pitch: " + o.Result.Test + " test" + pooledTitle(o),
 		Vehicle: o.Setup.Vehicle.Name,
 		Result:  o.Result,
 		Shapes:  shapeData(o.Result, o.Setup),
+	}
+	if o.Identified == nil {
+		return in // a pooled analysis: its runs' data differ, the shapes are pooled
 	}
 	if rig := o.Identified.Rig; rig != nil {
 		in.FRF = frfData(rig, o.Result.Modes)
@@ -226,4 +229,12 @@ func unwrapDeg(p []float64) {
 	for k := 1; k < len(p); k++ {
 		p[k] -= 360 * math.Round((p[k]-p[k-1])/360)
 	}
+}
+
+// pooledTitle notes a pooled analysis in the report's title.
+func pooledTitle(o *job.Outcome) string {
+	if len(o.Runs) < 2 {
+		return ""
+	}
+	return fmt.Sprintf(", %d logs pooled", len(o.Runs))
 }

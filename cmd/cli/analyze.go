@@ -17,7 +17,7 @@ func newAnalyzeCmd() *cobra.Command {
 		jsonPath, reportDir string
 	)
 	cmd := &cobra.Command{
-		Use:   "analyze LOG --setup FILE [--test rig|drop] [--json OUT] [--report DIR]",
+		Use:   "analyze LOG... --setup FILE [--test rig|drop] [--json OUT] [--report DIR]",
 		Short: "Identify bounce and pitch from a rig or drop log and set them beside the model",
 		Long: `analyze does the whole job on one log. For a rig test (the default when the
 setup has [[input]] channels) it estimates the FRFs from the front and rear
@@ -28,6 +28,12 @@ serves both tests of a car: with --test drop its [[input]] tables are ignored.
 Then it solves the design model, compares, back-calculates the effective ride
 rates (and damping), judges the [targets] and reports the trade's ride
 guidance.
+
+Several logs of one car in one state (repeated drops, repeated rig runs) give
+one pooled estimate: each log is identified on its own, each value is the
+inverse-variance weighted mean of the runs, and a chi-square test checks that
+the runs agree; a run that disagrees is named and the pooled uncertainty is
+widened. Three drops pin a node about 1/sqrt(3) as tightly as one.
 
 It prints a summary; --json writes the result (the contract's keys), --report
 writes an HTML report with figures into a folder. Choices (band, resolution,
@@ -41,14 +47,14 @@ a check in [targets] failed.
 ` + compare.Cautions,
 		Example: `  ridemodes analyze rig.csv --setup car.toml
   ridemodes analyze rig.csv --setup car.toml --json result.json --report report/
-  ridemodes analyze drop.csv --setup car.toml --test drop --start 2 --end 30`,
-		Args: usageArgs(cobra.ExactArgs(1)),
+  ridemodes analyze drop.csv --setup car.toml --test drop --start 2 --end 30
+  ridemodes analyze drop-1.csv drop-2.csv drop-3.csv --setup car.toml --test drop`,
+		Args: usageArgs(cobra.MinimumNArgs(1)),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			o.LogPath = args[0]
-			if err := outputGuard("json", jsonPath, o.LogPath, o.SetupPath); err != nil {
+			if err := outputGuard("json", jsonPath, append(args, o.SetupPath)...); err != nil {
 				return err
 			}
-			out, err := job.Analyze(cmd.Context(), o)
+			out, err := job.AnalyzeRuns(cmd.Context(), o, args)
 			if err != nil {
 				return libraryError(err)
 			}

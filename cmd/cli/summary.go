@@ -29,6 +29,7 @@ func printSummary(w io.Writer, res *compare.Result) {
 		fmt.Fprintf(w, "%s test, %s: %d samples at %.6g Hz (%.1f s)\n", res.Test, res.Log.Path, res.Log.Samples,
 			res.Log.SampleRateHz, res.Log.DurationS)
 	}
+	printRuns(w, res)
 	model := map[string]compare.ModeJSON{}
 	if res.Model != nil {
 		for _, m := range res.Model.Modes {
@@ -113,5 +114,30 @@ func printChecks(w io.Writer, heading string, checks []compare.Check) {
 	fmt.Fprintf(w, "\n%s\n", heading)
 	for _, c := range checks {
 		fmt.Fprintf(w, "  [%s] %s: %s\n", strings.ToUpper(c.Status), c.Name, c.Detail)
+	}
+}
+
+// printRuns lists the runs of a pooled analysis, each with its own modes,
+// and the consistency tests that failed.
+func printRuns(w io.Writer, res *compare.Result) {
+	if len(res.Runs) == 0 {
+		return
+	}
+	fmt.Fprintf(w, "%s test, %d logs pooled (%s)\n\nEach log on its own\n", res.Test, len(res.Runs), res.Pooling.Method)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "log\tmode\tf_n [Hz]\tzeta [-]\tnode [m]")
+	for _, r := range res.Runs {
+		for _, m := range r.Modes {
+			u := m.Uncertainty
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", r.Log.Path, m.Label, pm("%.4f", ptr(m.NaturalFrequencyHz), ptr(u.NaturalFrequencyHz)),
+				pm("%.3f", ptr(m.DampingRatio), ptr(u.DampingRatio)), pm("%+.3f", m.NodeM, u.NodeM))
+		}
+	}
+	tw.Flush()
+	for _, c := range res.Pooling.Checks {
+		if !c.Consistent {
+			fmt.Fprintf(w, "  runs disagree on the %s %s (p = %.2g): %s is %.1f sd from the others\n",
+				c.Label, c.Value, c.PValue, *c.OutlierLog, *c.OutlierZ)
+		}
 	}
 }

@@ -67,8 +67,10 @@ type Outcome struct {
 	Result *compare.Result
 	Setup  *ingest.Setup
 	// Identified holds the route's own data (FRFs and fit, or the drop log
-	// and its fit), for the figures.
+	// and its fit), for the figures; nil for a pooled analysis, whose runs'
+	// data are in Runs (in the order of the logs).
 	Identified *identify.Identified
+	Runs       []*identify.Identified
 	// TargetFailed is true when a check of the setup's [targets] failed.
 	TargetFailed bool
 }
@@ -138,8 +140,8 @@ func (o *Options) resolve() (*plan, error) {
 	return p, nil
 }
 
-// open opens the log for the plan's test, with the progress hook.
-func (o *Options) open(p *plan) (r *ingest.Reader, done func(), err error) {
+// open opens a log for the plan's test, with the progress hook.
+func (o *Options) open(p *plan, path string) (r *ingest.Reader, done func(), err error) {
 	ro := ingest.Options{
 		Channels:     identify.Channels(p.setup, p.test),
 		SampleRateHz: p.setup.Analysis.SampleRateHz,
@@ -153,11 +155,11 @@ func (o *Options) open(p *plan) (r *ingest.Reader, done func(), err error) {
 	}
 	done = func() {}
 	if o.Progress != nil {
-		if st, err := os.Stat(o.LogPath); err == nil {
-			ro.Progress, done = o.Progress(o.LogPath, st.Size())
+		if st, err := os.Stat(path); err == nil {
+			ro.Progress, done = o.Progress(path, st.Size())
 		}
 	}
-	r, err = ingest.Open(o.LogPath, ro)
+	r, err = ingest.Open(path, ro)
 	if err != nil {
 		done()
 		return nil, nil, o.explainMissing(p, err)
@@ -196,29 +198,39 @@ func Analyze(ctx context.Context, o Options) (*Outcome, error) {
 	if err != nil {
 		return nil, err
 	}
-	r, done, err := o.open(p)
+	id, info, err := o.identifyLog(ctx, p, o.LogPath)
 	if err != nil {
 		return nil, err
+	}
+	res := o.result(p, o.LogPath, info, id)
+	res.Warnings = append(res.Warnings, repeatAdvice(id, o.LogPath, p)...)
+	failed, err := res.AssessAgainst(p.setup)
+	if err != nil {
+		return nil, err
+	}
+	return &Outcome{Result: res, Setup: p.setup, Identified: id, TargetFailed: failed}, nil
+}
+
+// identifyLog reads one log and identifies its modes by the plan's route.
+func (o *Options) identifyLog(ctx context.Context, p *plan, path string) (*identify.Identified, ingest.Info, error) {
+	r, done, err := o.open(p, path)
+	if err != nil {
+		return nil, ingest.Info{}, err
 	}
 	defer r.Close()
 	id, err := identify.Identify(ctx, r, p.setup, p.test, p.identifyOptions(o.Event))
 	done()
 	if err != nil {
 		if ctx.Err() != nil {
-			return nil, ctx.Err()
+			return nil, ingest.Info{}, ctx.Err()
 		}
 		if id != nil && len(id.Warnings) > 0 {
 			// What the stages noticed before the failure often explains it.
 			err = fmt.Errorf("%w (noticed before the failure: %s)", err, strings.Join(id.Warnings, "; "))
 		}
-		return nil, withPath(o.LogPath, err)
+		return nil, ingest.Info{}, withPath(path, err)
 	}
-	res := o.result(p, r.Info(), id)
-	failed, err := res.AssessAgainst(p.setup)
-	if err != nil {
-		return nil, err
-	}
-	return &Outcome{Result: res, Setup: p.setup, Identified: id, TargetFailed: failed}, nil
+	return id, r.Info(), nil
 }
 
 // Spectra reads the log and estimates its spectra (every test) and, for a
@@ -229,7 +241,7 @@ func Spectra(ctx context.Context, o Options) (*identify.FRFResult, ingest.Summar
 	if err != nil {
 		return nil, ingest.Summary{}, err
 	}
-	r, done, err := o.open(p)
+	r, done, err := o.open(p, o.LogPath)
 	if err != nil {
 		return nil, ingest.Summary{}, err
 	}
@@ -246,13 +258,13 @@ func Spectra(ctx context.Context, o Options) (*identify.FRFResult, ingest.Summar
 }
 
 // result writes what the route identified in the contract's form.
-func (o *Options) result(p *plan, info ingest.Info, id *identify.Identified) *compare.Result {
+func (o *Options) result(p *plan, path string, info ingest.Info, id *identify.Identified) *compare.Result {
 	res := &compare.Result{Tool: compare.Tool{Name: "ridemodes", Version: o.ToolVersion}, Test: id.Test}
 	if sum, err := ingest.FileSHA256(p.setup.Path); err == nil {
 		res.Setup = &compare.FileRef{Path: p.setup.Path, SHA256: sum}
 	}
 	sum := id.Summary
-	res.Log = &compare.LogRef{Path: o.LogPath, SHA256: sum.SHA256, Samples: sum.Samples,
+	res.Log = &compare.LogRef{Path: path, SHA256: sum.SHA256, Samples: sum.Samples,
 		SampleRateHz: sum.SampleRateHz, DurationS: sum.DurationS, Notes: slices.Clip(info.Notes)}
 	if res.Log.Notes == nil {
 		res.Log.Notes = []string{}

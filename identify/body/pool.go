@@ -61,26 +61,28 @@ type Pooled struct {
 // 40, 1932; the scale factor of the Particle Data Group's averages
 // [memory]), and the run that disagrees most is named in a sentence that
 // uses names[i] for run i. The shapes at the sensors are averaged with the
-// natural frequency's weights. Runs must each hold one bounce and one pitch
-// mode with positive, finite standard deviations and the same sensors, or
-// Pool returns an error; fewer than two runs are a caller mistake and
-// panic.
+// natural frequency's weights. The runs' modes are paired by frequency
+// (lower with lower), not by their labels: a run's labels come from its
+// own shapes, which a weakly excited mode may leave poorly determined; the
+// pooled modes are labelled from the pooled shapes (SortAndLabel), and a
+// run whose own labels differ is named. Runs must each hold two modes with
+// positive, finite standard deviations and the same sensors, or Pool
+// returns an error; fewer than two runs are a caller mistake and panic.
 func Pool(runs [][]Mode, names []string) (*Pooled, error) {
 	if len(runs) < 2 || len(names) != len(runs) {
 		panic(fmt.Sprintf("body: pooling %d runs with %d names; pooling needs two or more", len(runs), len(names)))
 	}
 	p := &Pooled{}
-	for _, label := range []string{"bounce", "pitch"} {
+	for k := range 2 {
 		ms := make([]Mode, len(runs))
 		for i, run := range runs {
-			m, err := modeLabelled(run, label)
-			if err != nil {
-				return nil, fmt.Errorf("%s: %w", names[i], err)
+			if len(run) != 2 {
+				return nil, fmt.Errorf("%s: %d modes; each run must hold the two body modes", names[i], len(run))
 			}
-			if len(m.Shape) != len(runs[0][0].Shape) {
-				return nil, fmt.Errorf("%s: %d sensors, the first run has %d: pool runs of one setup", names[i], len(m.Shape), len(runs[0][0].Shape))
+			if len(run[k].Shape) != len(runs[0][0].Shape) {
+				return nil, fmt.Errorf("%s: %d sensors, the first run has %d: pool runs of one setup", names[i], len(run[k].Shape), len(runs[0][0].Shape))
 			}
-			ms[i] = m
+			ms[i] = lowerFirst(run)[k]
 		}
 		pm, checks, err := poolMode(ms, names)
 		if err != nil {
@@ -89,6 +91,17 @@ func Pool(runs [][]Mode, names []string) (*Pooled, error) {
 		p.Modes = append(p.Modes, pm)
 		p.Checks = append(p.Checks, checks...)
 	}
+	SortAndLabel(p.Modes)
+	for i := range p.Checks {
+		p.Checks[i].Label = p.Modes[i/3].Label
+	}
+	for i, run := range runs {
+		if lowerFirst(run)[0].Label != p.Modes[0].Label {
+			p.Disagreements = append(p.Disagreements, fmt.Sprintf(
+				"%s: its own mode shapes label the lower mode %s, the pooled ones %s: that run's shapes are poorly determined (its nodes %s)",
+				names[i], lowerFirst(run)[0].Label, p.Modes[0].Label, nodeList(run)))
+		}
+	}
 	for _, c := range p.Checks {
 		if !c.Consistent {
 			p.Disagreements = append(p.Disagreements, fmt.Sprintf(
@@ -96,22 +109,25 @@ func Pool(runs [][]Mode, names []string) (*Pooled, error) {
 				c.Label, c.Value, c.ChiSquare, c.DOF, c.PValue, names[c.Outlier], c.OutlierZ, c.Scale))
 		}
 	}
-	SortAndLabel(p.Modes)
 	return p, nil
 }
 
-// modeLabelled returns the mode of a run with the given label.
-func modeLabelled(run []Mode, label string) (Mode, error) {
-	var found []Mode
-	for _, m := range run {
-		if m.Label == label {
-			found = append(found, m)
-		}
+// lowerFirst returns the two modes of a run in the order of their natural
+// frequencies.
+func lowerFirst(run []Mode) [2]Mode {
+	if run[1].NaturalFrequencyHz < run[0].NaturalFrequencyHz {
+		return [2]Mode{run[1], run[0]}
 	}
-	if len(found) != 1 {
-		return Mode{}, fmt.Errorf("%d %s modes; each run must hold one bounce and one pitch mode", len(found), label)
+	return [2]Mode{run[0], run[1]}
+}
+
+// nodeList describes a run's nodes for a message.
+func nodeList(run []Mode) string {
+	var s []string
+	for _, m := range lowerFirst(run) {
+		s = append(s, fmt.Sprintf("%.3g Hz: %+.2f m", m.NaturalFrequencyHz, m.NodeM))
 	}
-	return found[0], nil
+	return strings.Join(s, ", ")
 }
 
 // weighted is the inverse-variance weighted mean of xs with sds, its sd,

@@ -16,7 +16,7 @@ type PoolingJSON struct {
 	Method string `json:"method"`
 	// Significance is the chi-square test's level below which the runs
 	// count as inconsistent.
-	Significance float64           `json:"significance"`
+	Significance float64            `json:"significance"`
 	Checks       []PoolingCheckJSON `json:"checks"`
 }
 

@@ -20,6 +20,10 @@ type MeasuredMode struct {
 	// and phase); nil when only the pitch per bounce is known.
 	Shape []SensorValue
 	Sigma ModeSigma
+	// Flagged is true when the data cannot support the mode (FlagReasons say
+	// why, in sentences); target checks that use it are then inconclusive.
+	Flagged     bool
+	FlagReasons []string
 }
 
 // SensorValue is the complex vertical motion W of a mode shape at position XM
@@ -50,7 +54,7 @@ func (m MeasuredMode) HasShape() bool {
 // as not measured (a hand-written file that leaves it out); a missing pitch
 // per bounce is taken from node_m as 1/node, and its standard deviation from
 // the node's as sigma_node/node^2. Shapes at the sensors come from
-// sensor_shape when present.
+// sensor_shape when present; flagged and flag_reasons are carried over.
 func MeasuredFromJSON(ms []ModeJSON) ([]MeasuredMode, error) {
 	out := make([]MeasuredMode, 0, len(ms))
 	for i, j := range ms {
@@ -62,7 +66,8 @@ func MeasuredFromJSON(ms []ModeJSON) ([]MeasuredMode, error) {
 				i+1, j.Label, j.NaturalFrequencyHz)
 		}
 		m := MeasuredMode{Label: j.Label, NaturalFrequencyHz: j.NaturalFrequencyHz,
-			DampingRatio: math.NaN(), PitchPerBounceRadPerM: math.NaN()}
+			DampingRatio: math.NaN(), PitchPerBounceRadPerM: math.NaN(),
+			Flagged: j.Flagged, FlagReasons: j.FlagReasons}
 		if j.DampingRatio != 0 {
 			if !(j.DampingRatio > 0 && j.DampingRatio < 1) {
 				return nil, fmt.Errorf("compare: mode %d (%s) has damping_ratio %g; give a value between 0 and 1, "+
@@ -128,6 +133,67 @@ func shapeVectors(meas MeasuredMode, model Mode, sensorsXM []float64, car Vehicl
 		return nil, nil, false
 	}
 	return mv, pv, true
+}
+
+// macSamples is the number of points at which MACSigma evaluates the MAC
+// across the pitch-per-bounce interval (ends included).
+const macSamples = 41
+
+// MACSigma returns the MAC of a measured mode with a model mode, as Compare
+// computes it, and a standard uncertainty for it from the standard deviation
+// of the measured pitch per bounce (the only shape uncertainty the
+// identification reports). The measured shape w at the positions s_k is
+// moved along the pitch direction, w_k - s_k delta z with z its heave (1 for
+// a shape given by its pitch per bounce; by Kinematics for a sensor shape),
+// which changes Re(theta/z) by delta; over delta in [-U, U], U = 2 sigma,
+// the least MAC is taken on a grid of macSamples points, and sigma is
+// (MAC - least)/2, so that MAC - 2 sigma is that least MAC. First-order
+// propagation (JCGM 100:2008, 5.1.2 [memory]) would give zero where the MAC
+// is at its maximum, because it is flat there; the interval does not.
+// The imaginary part of a sensor shape carries no uncertainty here.
+//
+// ok is false when the mode has no shape, no standard deviation of its pitch
+// per bounce, or a sensor shape whose heave cannot be found (fewer than two
+// distinct positions).
+func MACSigma(meas MeasuredMode, model Mode, sensorsXM []float64, car Vehicle) (mac, sigma float64, ok bool) {
+	mv, pv, ok := shapeVectors(meas, model, sensorsXM, car)
+	sp := meas.Sigma.PitchPerBounceRadPerM
+	if !ok || !(sp > 0) || math.IsInf(sp, 0) {
+		return math.NaN(), math.NaN(), false
+	}
+	mac = body.MAC(mv, pv)
+	pos := sensorsXM
+	if len(pos) == 0 {
+		pos = []float64{car.CGToFrontM, -car.CGToRearM}
+	}
+	z := complex(1, 0)
+	if len(meas.Shape) > 0 {
+		pos = make([]float64, len(meas.Shape))
+		for i, s := range meas.Shape {
+			pos[i] = s.XM
+		}
+		if !body.CanSeparate(pos) {
+			return math.NaN(), math.NaN(), false
+		}
+		z, _ = body.NewKinematics(pos).HeavePitch(mv)
+	}
+	least := mac
+	moved := make([]complex128, len(mv))
+	for i := 0; i < macSamples; i++ {
+		delta := coverageFactor * sp * (2*float64(i)/(macSamples-1) - 1)
+		for k := range mv {
+			moved[k] = mv[k] - complex(pos[k]*delta, 0)*z
+		}
+		m := body.MAC(moved, pv)
+		if math.IsNaN(m) {
+			return math.NaN(), math.NaN(), false
+		}
+		least = math.Min(least, m)
+	}
+	if math.IsNaN(mac) {
+		return math.NaN(), math.NaN(), false
+	}
+	return mac, (mac - least) / coverageFactor, true
 }
 
 // macMatrix returns MAC[i][j] between measured mode i and model mode j (NaN

@@ -20,7 +20,9 @@ type Result struct {
 	Comparison []Comparison `json:"comparison,omitempty"`
 	Updated    *Updated     `json:"updated,omitempty"`
 	Checks     []Check      `json:"checks,omitempty"`
-	Warnings   []string     `json:"warnings"`
+	// Verdict answers the setup's targets; written by Assessment.Fill.
+	Verdict  *Verdict `json:"verdict,omitempty"`
+	Warnings []string `json:"warnings"`
 	// Runs and Pooling describe a pooled analysis of several logs (then Log
 	// is left out); a single log leaves them out.
 	Runs    []RunJSON    `json:"runs,omitempty"`
@@ -104,6 +106,11 @@ type ModeJSON struct {
 	// SensorShape is the complex mode shape at the body sensors, when the
 	// identification gives one (any common scale and phase).
 	SensorShape []SensorShapeJSON `json:"sensor_shape,omitempty"`
+	// Flagged is true when the data cannot support a measured mode, for the
+	// reasons in FlagReasons (sentences); the target checks that use a
+	// flagged mode are inconclusive.
+	Flagged     bool     `json:"flagged"`
+	FlagReasons []string `json:"flag_reasons,omitempty"`
 }
 
 // SensorShapeJSON is a mode shape's complex vertical motion re + i im at the
@@ -209,11 +216,19 @@ type Observation struct {
 	Normalised float64 `json:"normalised_residual"` // (fitted - measured)/sigma
 }
 
-// Check is one verdict or guidance item.
+// Check is one target or guidance item. Target checks ("target.*") are pass,
+// fail or inconclusive (see decide) and carry their numbers in Quantity when
+// they judge one; guidance checks ("guidance.*") are pass or warn and carry
+// none.
 type Check struct {
 	Name   string `json:"name"`
-	Status string `json:"status"` // pass, warn or fail
+	Status string `json:"status"` // pass, warn, fail or inconclusive
 	Detail string `json:"detail"`
+	// Quantity adds value, unit, sigma, low and high to the JSON of a
+	// numeric target check; nil (no such keys) otherwise.
+	*Quantity
+	// summary is the check's phrase in the verdict summary (target checks).
+	summary string
 }
 
 // Finite returns a pointer to x, or nil for NaN and infinities (JSON null).

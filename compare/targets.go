@@ -8,19 +8,6 @@ import (
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
-// Check statuses.
-const (
-	StatusPass = "pass"
-	StatusWarn = "warn"
-	StatusFail = "fail"
-)
-
-// coverageFactor is the number of standard deviations a measured value must
-// keep inside a tolerance to pass outright; closer to the limit it is a
-// warning (k = 2, the usual expanded uncertainty of the GUM, JCGM 100:2008
-// [common practice]).
-const coverageFactor = 2
-
 // Assessment is what a measurement says about the design model: the parts
 // of a Result that compare writes, the numeric update behind them, and the
 // verdict.
@@ -34,7 +21,12 @@ type Assessment struct {
 	UpdateErr error
 	Checks    []Check
 	Warnings  []string
-	// AnyFailed is true when a [targets] check failed (exit code 3).
+	// Verdict answers the [targets]: its Status is none, pass, fail or
+	// inconclusive, for the caller to map to an exit code (3 for fail, 4 for
+	// inconclusive).
+	Verdict Verdict
+	// AnyFailed is true when a [targets] check failed (Verdict.Status is
+	// fail; exit code 3).
 	AnyFailed bool
 	// RideRates says how the setup's ride rates were obtained, for printing.
 	RideRates []AxleRideRate
@@ -69,10 +61,9 @@ func Assess(measured []MeasuredMode, setup *ingest.Setup) (*Assessment, error) {
 		}
 	}
 	paired, _ := pairByLabel(measured, model) // checked by Compare
-	a.Checks = TargetChecks(setup.Targets, design, paired, a.Comparison, a.Update, a.UpdateErr)
-	for _, c := range a.Checks {
-		a.AnyFailed = a.AnyFailed || c.Status == StatusFail
-	}
+	a.Checks = TargetChecks(setup.Targets, design, model, paired, sensors, a.Comparison, a.Update, a.UpdateErr)
+	a.Verdict = verdictOf(a.Checks)
+	a.AnyFailed = a.Verdict.Status == StatusFail
 	guide := design
 	if a.Update != nil {
 		guide = a.Update.Vehicle
@@ -120,108 +111,139 @@ func (a *Assessment) equivalentSprings(spec ingest.VehicleSpec) {
 	}
 }
 
-// Fill writes the comparison, updated and checks parts into r and appends
-// the warnings.
+// Fill writes the comparison, updated, checks and verdict parts into r and
+// appends the warnings.
 func (a *Assessment) Fill(r *Result) {
 	r.Comparison, r.Updated = a.Comparison, a.Updated
+	v := a.Verdict
+	r.Verdict = &v
 	r.Checks = append(r.Checks, a.Checks...)
 	r.Warnings = append(r.Warnings, a.Warnings...)
 }
 
-// tolerance grades |diff| against tol with the standard deviation sigma of
-// diff: fail outside, warn inside but within coverageFactor sigmas of the
-// limit, pass otherwise.
-func tolerance(diff, sigma, tol float64) string {
-	switch {
-	case math.Abs(diff) > tol:
-		return StatusFail
-	case math.Abs(diff)+coverageFactor*sigma > tol:
-		return StatusWarn
-	default:
-		return StatusPass
-	}
+// openCheck is a target check that cannot be judged: inconclusive, with the
+// reason why in its detail and in the verdict.
+func openCheck(name, why string) Check {
+	return Check{Name: name, Status: StatusInconclusive, Detail: why + ": " + StatusInconclusive,
+		summary: phrase(plainName(name), StatusInconclusive, why)}
 }
 
-// TargetChecks grades the measurement against the [targets] tolerances t
-// (absent tolerances give no check): frequencies and damping ratios of the
-// paired modes (ordered like cmp) against the model's, the MAC of the
-// shapes, and the updated rates and damping against design. A tolerance that
-// cannot be checked (nothing measured) is a warning; rates of a measurement
-// the model cannot fit fail.
-func TargetChecks(t ingest.Targets, design Vehicle, paired []MeasuredMode, cmp []Comparison, u *Update, updErr error) []Check {
+// TargetChecks judges the measurement against the [targets] tolerances t
+// (absent tolerances give no check) by the decision rule of decide:
+// frequencies and damping ratios of the paired modes (ordered like the
+// design's model modes and like cmp) against the model's, the MAC of the
+// shapes (one-sided: at least the target, its uncertainty from MACSigma with
+// the sensor positions sensorsXM), and the rates and damping of the update u
+// against design. The references (the model's values and the design rates)
+// are exact, so each check's uncertainty is the measured value's.
+//
+// A measured value without a standard deviation (zero in ModeSigma), a rate
+// whose uncertainty rests on nominal weights, a tolerance with nothing to
+// check (no damping or shape measured, no damper in the design, an update
+// that failed) and any check that uses a flagged mode are inconclusive, with
+// the reason in the detail. Rates of a measurement the model cannot fit
+// (ErrNoFit) fail when the measured frequency ratio with its expanded
+// uncertainty lies wholly below the least that the body allows, and are
+// inconclusive otherwise.
+func TargetChecks(t ingest.Targets, design Vehicle, model []Mode, paired []MeasuredMode, sensorsXM []float64,
+	cmp []Comparison, u *Update, updErr error) []Check {
 	var out []Check
+	noSigma := func(what string) string { return "no standard deviation was given for the " + what }
 	for i, c := range cmp {
 		tol := t.BounceFrequencyTolerancePct
 		if c.Label == "pitch" {
 			tol = t.PitchFrequencyTolerancePct
 		}
-		if !math.IsNaN(tol) {
-			sig := 100 * paired[i].Sigma.NaturalFrequencyHz / c.PredictedHz
-			out = append(out, Check{Name: "target." + c.Label + "_frequency", Status: tolerance(c.DifferencePct, sig, tol),
-				Detail: fmt.Sprintf("measured %.3f Hz (sigma %.3f), model %.3f Hz: %+.1f %% against +-%.1f %%",
-					c.MeasuredHz, paired[i].Sigma.NaturalFrequencyHz, c.PredictedHz, c.DifferencePct, tol)})
+		if math.IsNaN(tol) {
+			continue
 		}
+		sig := positiveOrNaN(paired[i].Sigma.NaturalFrequencyHz)
+		out = append(out, judged{name: "target." + c.Label + "_frequency", value: c.MeasuredHz, sigma: sig,
+			sigmaWhy: noSigma(c.Label + " frequency"),
+			low:      c.PredictedHz * (1 - tol/100), high: c.PredictedHz * (1 + tol/100), shown: shownHz,
+			against: fmt.Sprintf("%+.1f %% against the model, tolerance ±%g %%", c.DifferencePct, tol),
+			flagged: flagWords(paired[i]),
+			detail: fmt.Sprintf("measured %.3f Hz (sigma %.3f), model %.3f Hz: %+.1f %% against +-%.1f %%",
+				c.MeasuredHz, paired[i].Sigma.NaturalFrequencyHz, c.PredictedHz, c.DifferencePct, tol)}.check())
 	}
 	if tol := t.DampingRatioTolerance; !math.IsNaN(tol) {
 		for i, c := range cmp {
-			ch := Check{Name: "target." + c.Label + "_damping_ratio"}
+			name := "target." + c.Label + "_damping_ratio"
 			switch {
 			case !design.Damped():
-				ch.Status, ch.Detail = StatusWarn, "the model has no damping to compare with; give "+
-					"front_damping_ns_per_m and rear_damping_ns_per_m in [vehicle]"
+				out = append(out, openCheck(name, "the model has no damping to compare with; give "+
+					"front_damping_ns_per_m and rear_damping_ns_per_m in [vehicle]"))
 			case c.MeasuredDampingRatio == nil:
-				ch.Status, ch.Detail = StatusWarn, "no damping ratio was measured for this mode"
+				out = append(out, openCheck(name, "no damping ratio was measured for this mode"))
 			default:
 				d := *c.MeasuredDampingRatio - c.PredictedDampingRatio
-				ch.Status = tolerance(d, paired[i].Sigma.DampingRatio, tol)
-				ch.Detail = fmt.Sprintf("measured %.3f (sigma %.3f), model %.3f: %+.3f against +-%.3f",
-					*c.MeasuredDampingRatio, paired[i].Sigma.DampingRatio, c.PredictedDampingRatio, d, tol)
+				out = append(out, judged{name: name, value: *c.MeasuredDampingRatio,
+					sigma: positiveOrNaN(paired[i].Sigma.DampingRatio), sigmaWhy: noSigma(c.Label + " damping ratio"),
+					low: c.PredictedDampingRatio - tol, high: c.PredictedDampingRatio + tol, shown: shownRatio,
+					against: fmt.Sprintf("%+.3f against the model, tolerance ±%g", d, tol),
+					flagged: flagWords(paired[i]),
+					detail: fmt.Sprintf("measured %.3f (sigma %.3f), model %.3f: %+.3f against +-%.3f",
+						*c.MeasuredDampingRatio, paired[i].Sigma.DampingRatio, c.PredictedDampingRatio, d, tol)}.check())
 			}
-			out = append(out, ch)
 		}
 	}
 	if min := t.ModeShapeMACMin; !math.IsNaN(min) {
-		for _, c := range cmp {
-			ch := Check{Name: "target." + c.Label + "_mode_shape", Status: StatusPass,
-				Detail: fmt.Sprintf("MAC %.3f against a least of %.3f", c.MAC, min)}
-			switch {
-			case !c.ShapeMeasured:
-				ch.Status, ch.Detail = StatusWarn, "no mode shape was measured for this mode"
-			case c.MAC < min:
-				ch.Status = StatusFail
+		for i, c := range cmp {
+			name := "target." + c.Label + "_mode_shape"
+			if !c.ShapeMeasured {
+				out = append(out, openCheck(name, "no mode shape was measured for this mode"))
+				continue
 			}
-			out = append(out, ch)
+			_, sig, ok := MACSigma(paired[i], model[i], sensorsXM, design)
+			if !ok {
+				sig = math.NaN()
+			}
+			out = append(out, judged{name: name, value: c.MAC, sigma: sig,
+				sigmaWhy: "the mode comes without a standard deviation of its pitch per bounce, " +
+					"which the MAC's uncertainty is taken from",
+				low: min, high: math.NaN(), shown: shownRatio,
+				against: fmt.Sprintf("MAC with the model's shape, least %g", min),
+				flagged: flagWords(paired[i]),
+				detail:  fmt.Sprintf("MAC %.3f against a least of %.3f", c.MAC, min)}.check())
 		}
 	}
 	type axleValue struct {
 		name              string
 		got, sigma, want  float64
-		unit              string
+		shown             unitShown
 		needsDamping      bool
 		designHasNoDamper bool
 	}
+	sigmaWhy := rateSigmaWhy(paired, u)
 	check := func(tol float64, items []axleValue) {
 		if math.IsNaN(tol) {
 			return
 		}
 		for _, it := range items {
-			ch := Check{Name: "target." + it.name}
+			name := "target." + it.name
+			words := plainName(name)
 			switch {
 			case updErr != nil && errors.Is(updErr, ErrNoFit):
-				ch.Status, ch.Detail = StatusFail, "no "+it.name+" could be back-calculated: "+updErr.Error()
+				out = append(out, noFitCheck(name, updErr, paired))
 			case updErr != nil:
-				ch.Status, ch.Detail = StatusWarn, "no "+it.name+" could be back-calculated: "+updErr.Error()
+				out = append(out, openCheck(name, "no "+words+" could be back-calculated: "+updErr.Error()))
 			case it.needsDamping && !u.Damped:
-				ch.Status, ch.Detail = StatusWarn, "no damping was measured, so none was back-calculated"
+				out = append(out, openCheck(name, "no damping was measured, so none was back-calculated"))
 			case it.designHasNoDamper:
-				ch.Status, ch.Detail = StatusWarn, "the design gives no damping for this axle to compare with"
+				out = append(out, openCheck(name, "the design gives no damping for this axle to compare with"))
 			default:
 				d := 100 * (it.got - it.want) / it.want
-				ch.Status = tolerance(d, 100*it.sigma/it.want, tol)
-				ch.Detail = fmt.Sprintf("back-calculated %.0f %s (sigma %.0f), design %.0f %s: %+.1f %% against +-%.1f %%",
-					it.got, it.unit, it.sigma, it.want, it.unit, d, tol)
+				sig := it.sigma
+				if sigmaWhy != "" {
+					sig = math.NaN()
+				}
+				out = append(out, judged{name: name, value: it.got, sigma: sig, sigmaWhy: sigmaWhy,
+					low: it.want * (1 - tol/100), high: it.want * (1 + tol/100), shown: it.shown,
+					against: fmt.Sprintf("%+.1f %% against design, tolerance ±%g %%", d, tol),
+					flagged: flagWords(paired...),
+					detail: fmt.Sprintf("back-calculated %.0f %s (sigma %.0f), design %.0f %s: %+.1f %% against +-%.1f %%",
+						it.got, it.shown.json, it.sigma, it.want, it.shown.json, d, tol)}.check())
 			}
-			out = append(out, ch)
 		}
 	}
 	var got, sig Rates
@@ -230,12 +252,78 @@ func TargetChecks(t ingest.Targets, design Vehicle, paired []MeasuredMode, cmp [
 	}
 	want := design.RatesOf()
 	check(t.RideRateTolerancePct, []axleValue{
-		{"front_ride_rate", got.FrontRateNPerM, sig.FrontRateNPerM, want.FrontRateNPerM, "N/m", false, false},
-		{"rear_ride_rate", got.RearRateNPerM, sig.RearRateNPerM, want.RearRateNPerM, "N/m", false, false},
+		{"front_ride_rate", got.FrontRateNPerM, sig.FrontRateNPerM, want.FrontRateNPerM, shownRate, false, false},
+		{"rear_ride_rate", got.RearRateNPerM, sig.RearRateNPerM, want.RearRateNPerM, shownRate, false, false},
 	})
 	check(t.AxleDampingTolerancePct, []axleValue{
-		{"front_damping", got.FrontDampingNsPerM, sig.FrontDampingNsPerM, want.FrontDampingNsPerM, "N s/m", true, want.FrontDampingNsPerM == 0},
-		{"rear_damping", got.RearDampingNsPerM, sig.RearDampingNsPerM, want.RearDampingNsPerM, "N s/m", true, want.RearDampingNsPerM == 0},
+		{"front_damping", got.FrontDampingNsPerM, sig.FrontDampingNsPerM, want.FrontDampingNsPerM, shownDamping, true, want.FrontDampingNsPerM == 0},
+		{"rear_damping", got.RearDampingNsPerM, sig.RearDampingNsPerM, want.RearDampingNsPerM, shownDamping, true, want.RearDampingNsPerM == 0},
 	})
 	return out
+}
+
+// positiveOrNaN returns a measured standard deviation, or NaN (unknown) when
+// it was not given (zero) or is not finite.
+func positiveOrNaN(sigma float64) float64 {
+	if sigma > 0 && !math.IsInf(sigma, 0) {
+		return sigma
+	}
+	return math.NaN()
+}
+
+// rateSigmaWhy says why the update's standard deviations are not a
+// measurement uncertainty ("" when they are): a measured frequency or
+// damping ratio that the update used came without a standard deviation, or
+// the least squares weighted some value with a nominal one.
+func rateSigmaWhy(paired []MeasuredMode, u *Update) string {
+	if u == nil {
+		return ""
+	}
+	if u.NominalWeights {
+		return "some measured values came without a standard deviation and the update weighted them " +
+			"with nominal ones"
+	}
+	given := u.HasSigma
+	for _, m := range paired {
+		given = given && m.Sigma.NaturalFrequencyHz > 0 && (!u.Damped || m.Sigma.DampingRatio > 0)
+	}
+	if !given {
+		return "a measured frequency or damping ratio that the update used came without a standard deviation"
+	}
+	return ""
+}
+
+// noFitCheck judges a rate target when no rates of the design's body
+// reproduce the measured modes (err matches ErrNoFit): the measured ratio of
+// the higher to the lower natural frequency against the least ratio the body
+// allows, by decide; fail only when the ratio with its expanded uncertainty
+// lies wholly below it.
+func noFitCheck(name string, err error, paired []MeasuredMode) Check {
+	head := "no " + plainName(name) + " could be back-calculated: " + err.Error()
+	var nf *NoFitError
+	if !errors.As(err, &nf) || nf.Damped {
+		return openCheck(name, head+"; whether the measured poles lie outside what the body allows "+
+			"is not known with their uncertainty")
+	}
+	var rel2 float64
+	for _, m := range paired {
+		rel2 += sq(positiveOrNaN(m.Sigma.NaturalFrequencyHz) / m.NaturalFrequencyHz)
+	}
+	sigma := nf.FrequencyRatio * math.Sqrt(rel2)
+	if math.IsNaN(sigma) {
+		return openCheck(name, head+"; without standard deviations of both frequencies it is not known "+
+			"whether the measured ratio lies outside what the body allows")
+	}
+	status := decide(nf.FrequencyRatio, sigma, nf.MinFrequencyRatio, math.NaN())
+	words := fmt.Sprintf("%s: the measured frequency ratio %.4f ± %.4f (k = 2) against the least of %.4f "+
+		"that this body allows", plainName(name), nf.FrequencyRatio, coverageFactor*sigma, nf.MinFrequencyRatio)
+	why := "the ratio with its expanded uncertainty reaches the least"
+	detail := fmt.Sprintf("%s; the measured frequency ratio %.4f (sigma %.4f) against the least of %.4f",
+		head, nf.FrequencyRatio, sigma, nf.MinFrequencyRatio)
+	if fl := flagWords(paired...); fl != "" {
+		status, why = StatusInconclusive, fl
+		detail += "; " + fl + ", so the check cannot be trusted"
+	}
+	detail += ": " + status + " (decision rule of JCGM 106:2012, U = 2 sigma)"
+	return Check{Name: name, Status: status, Detail: detail, summary: phrase(words, status, why)}
 }

@@ -2,6 +2,7 @@ package compare
 
 import (
 	"errors"
+	"math"
 	"strings"
 	"testing"
 
@@ -54,10 +55,11 @@ func TestAssessVerdict(t *testing.T) {
 	design := DesignOf(setup.Vehicle) // front ride rate 81632.65 x 0.49 = 40000 N/m
 	sig := ModeSigma{NaturalFrequencyHz: 0.005, DampingRatio: 0.005, PitchPerBounceRadPerM: 0.02}
 	for _, c := range []struct {
-		name       string
-		frontScale float64
-		wantFail   bool
-	}{{"as designed", 1, false}, {"front 20 % stiff", 1.2, true}} {
+		name        string
+		frontScale  float64
+		wantFail    bool
+		wantVerdict string
+	}{{"as designed", 1, false, StatusPass}, {"front 20 % stiff", 1.2, true, StatusFail}} {
 		t.Run(c.name, func(t *testing.T) {
 			built := design
 			built.FrontRateNPerM *= c.frontScale
@@ -75,6 +77,9 @@ func TestAssessVerdict(t *testing.T) {
 			}
 			if a.AnyFailed != c.wantFail {
 				t.Errorf("AnyFailed %v, want %v; checks %+v", a.AnyFailed, c.wantFail, a.Checks)
+			}
+			if a.Verdict.Status != c.wantVerdict {
+				t.Errorf("verdict %+v, want %s; checks %+v", a.Verdict, c.wantVerdict, a.Checks)
 			}
 			if got := statusOf(a.Checks, "target.front_ride_rate"); (got == StatusFail) != c.wantFail {
 				t.Errorf("front ride rate check %q", got)
@@ -103,30 +108,46 @@ func TestAssessNoFit(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	meas := []MeasuredMode{
-		{Label: "bounce", NaturalFrequencyHz: 1.20, DampingRatio: 0.05, PitchPerBounceRadPerM: -0.3},
-		{Label: "pitch", NaturalFrequencyHz: 1.21, DampingRatio: 0.05, PitchPerBounceRadPerM: 2},
-	}
-	a, err := Assess(meas, setup)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !errors.Is(a.UpdateErr, ErrNoFit) || a.Updated != nil {
-		t.Fatalf("UpdateErr %v", a.UpdateErr)
-	}
-	if statusOf(a.Checks, "target.front_ride_rate") != StatusFail || !a.AnyFailed {
-		t.Errorf("a model that cannot fit must fail the rate targets: %+v", a.Checks)
-	}
-}
-
-func TestToleranceGrades(t *testing.T) {
-	// Inside by more than two sigma: pass; inside but within two: warn; outside: fail.
+	// Frequencies 1.20 and 1.21 Hz (ratio 1.008), undamped: this body allows
+	// no ratio under about 1.2 with any positive rates (TestBackCalcNoFit).
 	for _, c := range []struct {
-		diff, sigma, tol float64
-		want             string
-	}{{1, 0.5, 5, StatusPass}, {4, 0.6, 5, StatusWarn}, {-6, 0.1, 5, StatusFail}, {5, 0, 5, StatusPass}} {
-		if got := tolerance(c.diff, c.sigma, c.tol); got != c.want {
-			t.Errorf("tolerance(%g, %g, %g) = %s, want %s", c.diff, c.sigma, c.tol, got, c.want)
-		}
+		name    string
+		sigmaHz float64
+		flagged bool
+		want    string
+	}{
+		// 2 sigma of the ratio is about 0.005: wholly below the least.
+		{"with standard deviations", 0.002, false, StatusFail},
+		// Without them nothing says how far the ratio may be off.
+		{"without standard deviations", 0, false, StatusInconclusive},
+		{"flagged", 0.002, true, StatusInconclusive},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			meas := []MeasuredMode{
+				{Label: "bounce", NaturalFrequencyHz: 1.20, DampingRatio: math.NaN(), PitchPerBounceRadPerM: -0.3},
+				{Label: "pitch", NaturalFrequencyHz: 1.21, DampingRatio: math.NaN(), PitchPerBounceRadPerM: 2},
+			}
+			for i := range meas {
+				meas[i].Sigma.NaturalFrequencyHz = c.sigmaHz
+			}
+			if c.flagged { // both: the frequency checks use one each, the rates both
+				for i := range meas {
+					meas[i].Flagged, meas[i].FlagReasons = true, []string{"Its peak is under the noise floor."}
+				}
+			}
+			a, err := Assess(meas, setup)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !errors.Is(a.UpdateErr, ErrNoFit) || a.Updated != nil {
+				t.Fatalf("UpdateErr %v", a.UpdateErr)
+			}
+			if got := statusOf(a.Checks, "target.front_ride_rate"); got != c.want {
+				t.Errorf("front ride rate %s, want %s: %+v", got, c.want, a.Checks)
+			}
+			if a.AnyFailed != (c.want == StatusFail) {
+				t.Errorf("AnyFailed %v", a.AnyFailed)
+			}
+		})
 	}
 }

@@ -27,17 +27,14 @@ type Kinematics struct {
 // CG, positive forward). Fewer than two distinct, finite positions are a
 // caller mistake and panic.
 func NewKinematics(sM []float64) Kinematics {
-	var n, s1, s2, reach float64
-	for _, s := range sM {
-		n++
-		s1 += s
-		s2 += s * s
-		reach = math.Max(reach, math.Abs(s))
-	}
-	det := n*s2 - s1*s1
+	n, s1, s2, det := spread(sM)
 	if !(det > 0) || math.IsInf(det, 0) {
 		panic(fmt.Sprintf("body: sensors at %v m cannot separate heave from pitch; "+
 			"they must sit at two or more distinct, finite positions", sM))
+	}
+	var reach float64
+	for _, s := range sM {
+		reach = math.Max(reach, math.Abs(s))
 	}
 	k := Kinematics{ZWeights: make([]float64, len(sM)), ThetaWeights: make([]float64, len(sM)), ReachM: reach}
 	for i, s := range sM {
@@ -45,6 +42,25 @@ func NewKinematics(sM []float64) Kinematics {
 		k.ThetaWeights[i] = (s1 - n*s) / det
 	}
 	return k
+}
+
+// CanSeparate reports whether sensors at positions sM (m) can separate heave
+// from pitch, which NewKinematics needs: two or more distinct, finite
+// positions, within the range where the normal equations do not overflow.
+func CanSeparate(sM []float64) bool {
+	_, _, _, det := spread(sM)
+	return det > 0 && !math.IsInf(det, 0)
+}
+
+// spread returns the count n, S1 = sum s_k and S2 = sum s_k^2 of the
+// positions, and the determinant D = n S2 - S1^2 of the normal equations.
+func spread(sM []float64) (n, s1, s2, det float64) {
+	for _, s := range sM {
+		n++
+		s1 += s
+		s2 += s * s
+	}
+	return n, s1, s2, n*s2 - s1*s1
 }
 
 // HeavePitch returns the heave z (m) and pitch theta (rad, positive

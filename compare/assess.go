@@ -43,22 +43,22 @@ func MeasuredJSON(m body.Mode, posM []float64, method string) ModeJSON {
 
 // AssessAgainst adds to a result that holds measured modes the design
 // model of setup, the comparison, the back-calculated rates and the checks
-// (Assess); it reports whether a [targets] check failed.
-func (r *Result) AssessAgainst(setup *ingest.Setup) (failed bool, err error) {
+// (Assess), and the verdict on the setup's [targets] (r.Verdict).
+func (r *Result) AssessAgainst(setup *ingest.Setup) error {
 	design := DesignOf(setup.Vehicle)
 	model, err := design.Modes()
 	if err != nil {
-		return false, fmt.Errorf("%s: %w", setup.Path, err)
+		return fmt.Errorf("%s: %w", setup.Path, err)
 	}
 	r.Model = ModelPart(model, design.Damped())
 	measured, err := MeasuredFromJSON(r.Modes)
 	if err != nil {
-		return false, err
+		return err
 	}
 	a, err := Assess(measured, setup)
 	if err != nil {
-		return false, err
+		return err
 	}
 	a.Fill(r)
-	return a.AnyFailed, nil
+	return nil
 }

@@ -83,7 +83,7 @@ func libraryError(err error) error {
 }
 
 // writeOutcome writes the JSON result and the report, each atomically, and
-// returns errTargetsFailed when a target check failed.
+// returns the verdict's error (exit code 3 or 4) when it is not a pass.
 func writeOutcome(o *job.Outcome, jsonPath, reportDir string) error {
 	if jsonPath != "" {
 		data, err := o.Result.Marshal()
@@ -99,8 +99,5 @@ func writeOutcome(o *job.Outcome, jsonPath, reportDir string) error {
 			return err
 		}
 	}
-	if o.TargetFailed {
-		return errTargetsFailed
-	}
-	return nil
+	return verdictError(o.Verdict)
 }

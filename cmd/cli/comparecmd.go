@@ -48,8 +48,7 @@ Exit codes: 0 done; 1 bad data; 2 bad usage; 3 done, but a target failed.`,
 			if sum, err := ingest.FileSHA256(setupPath); err == nil {
 				res.Setup = &compare.FileRef{Path: setupPath, SHA256: sum}
 			}
-			failed, err := res.AssessAgainst(setup)
-			if err != nil {
+			if err := res.AssessAgainst(setup); err != nil {
 				return fmt.Errorf("%s: %w", modesPath, err)
 			}
 			printSummary(cmd.OutOrStdout(), res)
@@ -62,10 +61,7 @@ Exit codes: 0 done; 1 bad data; 2 bad usage; 3 done, but a target failed.`,
 					return err
 				}
 			}
-			if failed {
-				return errTargetsFailed
-			}
-			return nil
+			return verdictError(res.Verdict.Status)
 		},
 	}
 	cmd.Flags().StringVar(&modesPath, "modes", "", "measured modes: an analyze result or a file with a \"modes\" array (JSON)")

@@ -12,6 +12,8 @@ import (
 	"syscall"
 
 	"github.com/spf13/cobra"
+
+	"github.com/ridemodes/ridemodes/compare"
 )
 
 // Version is the program version; release builds set it with
@@ -34,6 +36,10 @@ const (
 	exitData    = 1
 	exitUsage   = 2
 	exitTargets = 3
+	// exitInconclusive: done, nothing failed, but a check is inconclusive
+	// (its expanded uncertainty reaches across a limit, or a mode it uses
+	// is flagged).
+	exitInconclusive = 4
 	// exitInterrupted follows the shell's convention for a run stopped by
 	// SIGINT (128 + 2); no output file is left behind.
 	exitInterrupted = 130
@@ -47,6 +53,21 @@ func (e usageError) Unwrap() error { return e.err }
 
 // errTargetsFailed is returned after a complete run whose target check failed (exit code 3).
 var errTargetsFailed = errors.New("a target check failed (see the checks above)")
+
+// errInconclusive is returned after a complete run with no failed check but
+// an inconclusive one (exit code 4).
+var errInconclusive = errors.New("a target check is inconclusive: the uncertainty reaches across a limit or a mode is flagged (see the checks above)")
+
+// verdictError turns a result's verdict into the error that sets its exit code.
+func verdictError(status string) error {
+	switch status {
+	case compare.StatusFail:
+		return errTargetsFailed
+	case compare.StatusInconclusive:
+		return errInconclusive
+	}
+	return nil
+}
 
 // usageArgs wraps a cobra positional-argument validator so its errors count as usage errors.
 func usageArgs(v cobra.PositionalArgs) cobra.PositionalArgs {
@@ -107,6 +128,9 @@ func Execute(args []string, stdout, stderr io.Writer) int {
 	case errors.Is(err, errTargetsFailed):
 		fmt.Fprintln(stderr, "ridemodes:", err)
 		return exitTargets
+	case errors.Is(err, errInconclusive):
+		fmt.Fprintln(stderr, "ridemodes:", err)
+		return exitInconclusive
 	}
 	fmt.Fprintln(stderr, "ridemodes:", err)
 	var ue usageError

@@ -97,6 +97,9 @@ func printSummary(w io.Writer, res *compare.Result) {
 		}
 	}
 	printChecks(w, "Checks", res.Checks)
+	if v := res.Verdict; v != nil {
+		fmt.Fprintf(w, "\nVerdict: %s. %s\n", strings.ToUpper(v.Status), v.Summary)
+	}
 	if len(res.Warnings) > 0 {
 		fmt.Fprintln(w, "\nWarnings")
 		for _, s := range res.Warnings {

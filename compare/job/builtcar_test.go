@@ -66,7 +66,7 @@ func TestBuiltCarAgainstDesign(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if out.TargetFailed {
+	if out.Verdict != compare.StatusPass {
 		t.Errorf("loose targets failed: %+v", out.Result.Checks)
 	}
 	u := out.Result.Updated
@@ -107,7 +107,7 @@ func TestBuiltCarAgainstDesign(t *testing.T) {
 	for _, c := range out.Result.Checks {
 		failed = failed || (c.Status == compare.StatusFail && strings.Contains(c.Name, "rear"))
 	}
-	if !out.TargetFailed || !failed {
+	if out.Verdict != compare.StatusFail || !failed {
 		t.Errorf("a 5 %% rate tolerance did not fail the rear rate: %+v", out.Result.Checks)
 	}
 }

@@ -71,8 +71,9 @@ type Outcome struct {
 	// data are in Runs (in the order of the logs).
 	Identified *identify.Identified
 	Runs       []*identify.Identified
-	// TargetFailed is true when a check of the setup's [targets] failed.
-	TargetFailed bool
+	// Verdict is the result's verdict on the setup's [targets]: one of
+	// compare.StatusPass, StatusFail, StatusInconclusive, StatusNone.
+	Verdict string
 }
 
 // plan is what the options resolve to against a setup.
@@ -204,11 +205,10 @@ func Analyze(ctx context.Context, o Options) (*Outcome, error) {
 	}
 	res := o.result(p, o.LogPath, info, id)
 	res.Warnings = append(res.Warnings, repeatAdvice(id, o.LogPath, p)...)
-	failed, err := res.AssessAgainst(p.setup)
-	if err != nil {
+	if err := res.AssessAgainst(p.setup); err != nil {
 		return nil, err
 	}
-	return &Outcome{Result: res, Setup: p.setup, Identified: id, TargetFailed: failed}, nil
+	return &Outcome{Result: res, Setup: p.setup, Identified: id, Verdict: res.Verdict.Status}, nil
 }
 
 // identifyLog reads one log and identifies its modes by the plan's route.

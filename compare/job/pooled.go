@@ -59,11 +59,10 @@ func AnalyzeRuns(ctx context.Context, o Options, logPaths []string) (*Outcome, e
 		}
 	}
 	res.Warnings = append(res.Warnings, pooled.Disagreements...)
-	failed, err := res.AssessAgainst(p.setup)
-	if err != nil {
+	if err := res.AssessAgainst(p.setup); err != nil {
 		return nil, err
 	}
-	return &Outcome{Result: res, Setup: p.setup, Runs: ids, TargetFailed: failed}, nil
+	return &Outcome{Result: res, Setup: p.setup, Runs: ids, Verdict: res.Verdict.Status}, nil
 }
 
 // poolingMethod names how the runs are combined.

@@ -1,7 +1,7 @@
 // Package identify turns logs into measured body modes. It composes the
 // routes of its subpackages:
 //
-//   - spectral: streaming Welch spectra, FRFs (H1, H2, two-input H1),
+//   - spectral: streaming Welch spectra, FRFs (H1, two-input H1),
 //     coherence and their random-error bands, decimation and the choice of
 //     resolution (its doc comment fixes the scaling and FRF conventions);
 //   - modal: the mode indicator, the multi-mode pole-residue fit of the FRFs

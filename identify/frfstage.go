@@ -40,13 +40,13 @@ func WindowNamed(name string) (spectral.Window, error) {
 		name = ingest.DefaultWindow
 	}
 	if ingest.KnownWindow(name) {
-		for _, k := range []spectral.WindowKind{spectral.Hann, spectral.Hamming, spectral.FlatTop, spectral.Rectangular} {
-			if w := (spectral.Window{Kind: k}); w.String() == name {
+		for _, w := range []spectral.Window{spectral.Hann, spectral.Hamming, spectral.FlatTop, spectral.Rectangular} {
+			if w.String() == name {
 				return w, nil
 			}
 		}
 	}
-	return spectral.Window{}, fmt.Errorf("unknown window %q; use one of %s", name, strings.Join(ingest.Windows, ", "))
+	return 0, fmt.Errorf("unknown window %q; use one of %s", name, strings.Join(ingest.Windows, ", "))
 }
 
 // DefaultFitResolutionBias is the expected resolution bias allowed when the
@@ -209,7 +209,7 @@ func (s *FRFStage) start(fsHz float64) error {
 	outHz := fsHz / float64(s.q)
 	if s.opt.SegmentLen > 0 {
 		acc, err := spectral.NewAccumulator(spectral.Config{FsHz: outHz, SegmentLen: s.opt.SegmentLen,
-			Overlap: s.opt.SegmentLen / 2, Window: s.opt.Window, Detrend: spectral.DetrendMean,
+			Overlap: s.opt.SegmentLen / 2, Window: s.opt.Window,
 			Workers: s.opt.Workers}, s.names)
 		if err != nil {
 			return err
@@ -217,7 +217,7 @@ func (s *FRFStage) start(fsHz float64) error {
 		s.acc, s.sink = acc, acc
 	} else {
 		bank, err := spectral.NewBank(spectral.BankConfig{FsHz: outHz, Window: s.opt.Window,
-			Detrend: spectral.DetrendMean, Workers: s.opt.Workers}, s.names)
+			Workers: s.opt.Workers}, s.names)
 		if err != nil {
 			return err
 		}

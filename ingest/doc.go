@@ -5,7 +5,7 @@
 //
 // # The log dialect
 //
-// What Open, NewReader, ReadAll and ReadAllFrom read (the contract's "The log"):
+// What Open and NewReader read (the contract's "The log"):
 //
 //   - Lines that start with '#' before the header are notes, kept in Info.Notes
 //     without the '#' and one space. Blank lines before the header are skipped; a

@@ -80,7 +80,8 @@ func Open(path string, opt Options) (*Reader, error) {
 }
 
 // NewReader reads a log from rd, with name standing for the file in messages
-// and size its length in bytes for the progress hook (-1 when unknown).
+// and size its length in bytes for the progress hook (-1 when unknown): the
+// reader of a log held in memory, such as a simulated one.
 func NewReader(rd io.Reader, name string, size int64, opt Options) (*Reader, error) {
 	return newReader(rd, name, size, opt)
 }
@@ -436,8 +437,8 @@ func (r *Reader) Stream(consume func(b Block) error) (Summary, error) {
 	return st.finish()
 }
 
-// ReadAll reads the rest of the log into memory (see the package function
-// ReadAll).
+// ReadAll reads the rest of the (windowed) log into memory: for short logs;
+// long logs are better streamed (Stream).
 func (r *Reader) ReadAll() (*Log, error) {
 	data := make([][]float64, len(r.info.Channels))
 	if r.info.SizeBytes > 0 && r.opt.StartS == 0 && r.opt.EndS == 0 {
@@ -460,26 +461,6 @@ func (r *Reader) ReadAll() (*Log, error) {
 		return nil, err
 	}
 	return &Log{Info: r.Info(), Summary: sum, Data: data}, nil
-}
-
-// ReadAll reads a whole (windowed) log into memory: the convenience for
-// short logs and tests. Long logs are better streamed (Open, Stream).
-func ReadAll(path string, opt Options) (*Log, error) {
-	r, err := Open(path, opt)
-	if err != nil {
-		return nil, err
-	}
-	defer r.Close()
-	return r.ReadAll()
-}
-
-// ReadAllFrom is ReadAll over an io.Reader, name standing for the file.
-func ReadAllFrom(rd io.Reader, name string, opt Options) (*Log, error) {
-	r, err := NewReader(rd, name, -1, opt)
-	if err != nil {
-		return nil, err
-	}
-	return r.ReadAll()
 }
 
 func (r *Reader) sha() string { return hex.EncodeToString(r.src.h.Sum(nil)) }

@@ -102,7 +102,7 @@ func TestBadInputs(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			_, err := ReadAllFrom(strings.NewReader(c.in), "bad.csv", c.opt)
+			_, err := readAllFrom(strings.NewReader(c.in), "bad.csv", c.opt)
 			if err == nil {
 				t.Fatal("no error")
 			}

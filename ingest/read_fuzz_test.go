@@ -33,7 +33,7 @@ func FuzzRead(f *testing.F) {
 	}
 	f.Fuzz(func(t *testing.T, data []byte) {
 		for _, opt := range opts {
-			l, err := ReadAllFrom(bytes.NewReader(data), "fuzz.csv", opt)
+			l, err := readAllFrom(bytes.NewReader(data), "fuzz.csv", opt)
 			if err != nil {
 				var pe *ParseError
 				if !errors.As(err, &pe) || pe.Kind == nil || !errors.Is(err, pe.Kind) || pe.Path != "fuzz.csv" || pe.Line < 0 {

@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -16,9 +17,28 @@ import (
 	"time"
 )
 
+// readAllFrom reads a whole log from rd, name standing for the file.
+func readAllFrom(rd io.Reader, name string, opt Options) (*Log, error) {
+	r, err := NewReader(rd, name, -1, opt)
+	if err != nil {
+		return nil, err
+	}
+	return r.ReadAll()
+}
+
+// readFile opens and reads a whole log file.
+func readFile(path string, opt Options) (*Log, error) {
+	r, err := Open(path, opt)
+	if err != nil {
+		return nil, err
+	}
+	defer r.Close()
+	return r.ReadAll()
+}
+
 // readString reads a log held in a string, as "test.csv".
 func readString(in string, opt Options) (*Log, error) {
-	return ReadAllFrom(strings.NewReader(in), "test.csv", opt)
+	return readAllFrom(strings.NewReader(in), "test.csv", opt)
 }
 
 func mustRead(t *testing.T, in string, opt Options) *Log {
@@ -377,7 +397,7 @@ func TestOpenFile(t *testing.T) {
 	if err := os.WriteFile(path, []byte(in), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	l, err := ReadAll(path, Options{})
+	l, err := readFile(path, Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -387,7 +407,7 @@ func TestOpenFile(t *testing.T) {
 	if ch := l.Channel("pan_f"); len(ch) != 500 || l.Channel("nope") != nil {
 		t.Error("Channel")
 	}
-	_, err = ReadAll(filepath.Join(dir, "missing.csv"), Options{})
+	_, err = readFile(filepath.Join(dir, "missing.csv"), Options{})
 	if !errors.Is(err, os.ErrNotExist) {
 		t.Errorf("missing file: %v", err)
 	}
@@ -410,7 +430,7 @@ func TestStatsAndWarningString(t *testing.T) {
 // agrees with the rows as written.
 func TestGeneratedLog(t *testing.T) {
 	data := genBytes(3<<20, 5)
-	l, err := ReadAllFrom(bytes.NewReader(data), "gen.csv", Options{Channels: []string{"body_rear"}})
+	l, err := readAllFrom(bytes.NewReader(data), "gen.csv", Options{Channels: []string{"body_rear"}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -450,7 +470,7 @@ func TestReadsWriteLog(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	l, err := ReadAllFrom(&buf, "w.csv", Options{Channels: []string{"pan_f", "body_front"}})
+	l, err := readAllFrom(&buf, "w.csv", Options{Channels: []string{"pan_f", "body_front"}})
 	if err != nil {
 		t.Fatal(err)
 	}

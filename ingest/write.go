@@ -20,7 +20,7 @@ type LogColumn struct {
 // that a round trip through the text keeps 1e-10 relative accuracy.
 const writeDigits = 10
 
-// WriteLog writes a log in the CSV dialect that Open and ReadAll read: "# " note lines,
+// WriteLog writes a log in the CSV dialect that Open reads: "# " note lines,
 // a header "time [s],name [unit],...", then one row per sample with the time
 // t0S + i/rateHz, comma-delimited, '\n' line ends. All columns must have the
 // same length. The output depends only on the arguments, byte for byte.

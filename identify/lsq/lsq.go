@@ -29,10 +29,11 @@
 // nonlinear parameters", Journal of the Society for Industrial and Applied
 // Mathematics 11(2):431-441, 1963, doi:10.1137/0111030.
 //
-// Written by hand because gonum/optimize (a general minimiser, without a
-// least-squares method) imports stat/distmv, whose dependency has no go.sum
-// entry in this module; the structure of a sum of squares also makes
-// Levenberg-Marquardt the better method here.
+// Written here because gonum has no least-squares solver: gonum/optimize
+// minimises a general scalar function (BFGS, Newton, Nelder-Mead and
+// others), which would ignore the structure of a sum of squares that
+// Levenberg-Marquardt uses, J^T J as the curvature from first derivatives
+// alone.
 package lsq
 
 import (

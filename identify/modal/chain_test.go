@@ -86,7 +86,7 @@ func runChain(c rigCase) (*FRFSet, []compare.Mode, error) {
 	segS = math.Min(segS, c.durationS/chainMinSegments)
 	n := int(segS * chainRateHz)
 	acc, err := spectral.NewAccumulator(spectral.Config{FsHz: chainRateHz, SegmentLen: n, Overlap: n / 2,
-		Window: spectral.Window{Kind: spectral.Hann}, Detrend: spectral.DetrendMean}, channels)
+		Window: spectral.Hann}, channels)
 	if err != nil {
 		return nil, nil, err
 	}

@@ -77,10 +77,6 @@
 //   - P. Guillaume, P. Verboven, S. Vanlanduit, H. Van der Auweraer and
 //     B. Peeters, "A poly-reference implementation of the least-squares
 //     complex frequency-domain estimator", Proc. IMAC XXI, Kissimmee, 2003.
-//   - B. Peeters, H. Van der Auweraer, P. Guillaume and J. Leuridan, "The
-//     PolyMAX frequency-domain method: a new standard for modal parameter
-//     estimation?", Shock and Vibration 11(3-4):395-409, 2004,
-//     doi:10.1155/2004/523692.
 //   - T. De Troyer, P. Guillaume and M. C. Runacres, "Bias and variance of
 //     the LSCF estimator", Mechanical Systems and Signal Processing 31, 2012
 //     (damping bias of the unweighted estimator; the weighted refinement is

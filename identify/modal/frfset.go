@@ -131,7 +131,7 @@ func FromSpectral(fs *spectral.FRFSet, sp *spectral.Spectra, outputPosM []float6
 	if len(outputPosM) != len(fs.Outputs) {
 		panic(fmt.Sprintf("modal: FromSpectral got %d positions for %d outputs", len(outputPosM), len(fs.Outputs)))
 	}
-	w, err := sp.Window.Values(sp.SegmentLen, sp.FsHz)
+	w, err := sp.Window.Values(sp.SegmentLen)
 	if err != nil {
 		return nil, fmt.Errorf("modal: window of the spectra: %w", err)
 	}

@@ -68,8 +68,8 @@ func newBand(set *FRFSet, loHz, hiHz float64) (*band, int) {
 // so heavily damped modes needed excess order and the poles wandered with
 // the order (measured on the damped round-trip car of the design notes).
 //
-// References: Richardson & Formenti, IMAC 1982; Guillaume et al., IMAC 2003;
-// Peeters et al., Shock and Vibration 11, 2004 (see the package documentation).
+// References: Richardson & Formenti, IMAC 1982; Guillaume et al., IMAC 2003
+// (see the package documentation).
 func lscfPoles(b *band, order int) ([]complex128, error) {
 	ws := 2 * math.Pi * b.hiHz
 	extra := make([]float64, len(b.omega)) // Sanathanan-Koerner weights 1/|A_prev|^2

@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/floats"
+	"gonum.org/v1/gonum/stat"
 )
 
 // parallelSegmentLen is the shortest segment for which two worker lanes
@@ -31,7 +32,6 @@ type Config struct {
 	SegmentLen int     // samples per segment N (the FFT length)
 	Overlap    int     // samples shared by consecutive segments; SegmentLen/2 is scipy's default
 	Window     Window
-	Detrend    Detrend
 	// Workers is the number of lanes that transform segments concurrently;
 	// segment k always goes to lane k mod Workers and the lanes' sums are
 	// added in lane order, so the result is bit-reproducible for a given
@@ -69,7 +69,6 @@ type Accumulator struct {
 	cfg      Config
 	channels []string
 	win      []float64
-	index    []float64 // 0..N-1 for the linear detrend
 	hop      int
 	nFreq    int
 
@@ -108,7 +107,7 @@ func NewAccumulator(cfg Config, channels []string) (*Accumulator, error) {
 	if cfg.Workers == 0 {
 		cfg.Workers = defaultWorkers(cfg.SegmentLen)
 	}
-	win, err := cfg.Window.Values(cfg.SegmentLen, cfg.FsHz)
+	win, err := cfg.Window.Values(cfg.SegmentLen)
 	if err != nil {
 		return nil, err
 	}
@@ -120,14 +119,10 @@ func NewAccumulator(cfg Config, channels []string) (*Accumulator, error) {
 		cfg:      cfg,
 		channels: append([]string(nil), channels...),
 		win:      win,
-		index:    make([]float64, n),
 		hop:      n - cfg.Overlap,
 		nFreq:    n/2 + 1,
 		buf:      newMatrix(nch, n),
 		lanes:    make([]*lane, cfg.Workers),
-	}
-	for i := range a.index {
-		a.index[i] = float64(i)
 	}
 	for i := range a.lanes {
 		l := &lane{
@@ -220,11 +215,11 @@ func (a *Accumulator) flush() {
 	a.pending = 0
 }
 
-// process detrends, windows and transforms the lane's segment and adds the
-// cross products conj(X_i) X_j to the lane's sums.
+// process removes each channel's segment mean, windows and transforms the
+// lane's segment and adds the cross products conj(X_i) X_j to the lane's sums.
 func (l *lane) process(a *Accumulator) {
 	for ch, x := range l.seg {
-		a.cfg.Detrend.apply(x, a.index)
+		floats.AddConst(-stat.Mean(x, nil), x)
 		floats.Mul(x, a.win)
 		l.fft.Coefficients(l.coef[ch], x)
 	}
@@ -262,7 +257,6 @@ func (a *Accumulator) Spectra() (*Spectra, error) {
 		SegmentLen:        n,
 		Overlap:           a.cfg.Overlap,
 		Window:            a.cfg.Window,
-		Detrend:           a.cfg.Detrend,
 		Segments:          a.segments,
 		EffectiveAverages: effectiveAverages(a.win, a.hop, a.segments),
 		NoiseBandwidthHz:  noiseBandwidthBins(a.win) * fs / float64(n),

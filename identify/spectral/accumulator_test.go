@@ -11,7 +11,7 @@ import (
 func TestAccumulatorReproducible(t *testing.T) {
 	const laneTol = 1e-12 // relative to the largest spectral value
 	rec := synthRig(testCar(), independentPans, 0, 20, 41*2048, 41, outputNoiseFrac, 0)
-	cfg := Config{FsHz: 20, SegmentLen: 4096, Overlap: 2048, Window: Window{Kind: Hann}}
+	cfg := Config{FsHz: 20, SegmentLen: 4096, Overlap: 2048, Window: Hann}
 	run := func(workers int) *Spectra {
 		c := cfg
 		c.Workers = workers
@@ -45,7 +45,7 @@ func TestAccumulatorReproducible(t *testing.T) {
 // correlation 16.7 %), so nd = K/(1 + 2 (1 - 1/K)/36).
 func TestEffectiveAveragesHann(t *testing.T) {
 	const tol = 1e-12
-	w, err := Window{Kind: Hann}.Values(1024, 1)
+	w, err := Hann.Values(1024)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -66,7 +66,7 @@ func BenchmarkAccumulate(b *testing.B) {
 	for _, n := range []int{256, 1024, 4096, 16384} {
 		for _, workers := range []int{1, 2} {
 			b.Run(fmt.Sprintf("N=%d/workers=%d", n, workers), func(b *testing.B) {
-				acc, err := NewAccumulator(Config{FsHz: 1000, SegmentLen: n, Overlap: n / 2, Window: Window{Kind: Hann}, Workers: workers}, rigChannels)
+				acc, err := NewAccumulator(Config{FsHz: 1000, SegmentLen: n, Overlap: n / 2, Window: Hann, Workers: workers}, rigChannels)
 				if err != nil {
 					b.Fatal(err)
 				}
@@ -86,7 +86,7 @@ func BenchmarkAccumulate(b *testing.B) {
 func BenchmarkDecimatedAccumulate(b *testing.B) {
 	rec := benchRecord()
 	b.Run("direct/N=16384", func(b *testing.B) {
-		acc, err := NewAccumulator(Config{FsHz: 1000, SegmentLen: 16384, Overlap: 8192, Window: Window{Kind: Hann}}, rigChannels)
+		acc, err := NewAccumulator(Config{FsHz: 1000, SegmentLen: 16384, Overlap: 8192, Window: Hann}, rigChannels)
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -97,7 +97,7 @@ func BenchmarkDecimatedAccumulate(b *testing.B) {
 		b.ReportMetric(float64(b.N)*float64(len(rec[0]))/b.Elapsed().Seconds(), "samples/s/ch")
 	})
 	b.Run("decimated-40/N=512", func(b *testing.B) {
-		acc, err := NewAccumulator(Config{FsHz: 25, SegmentLen: 512, Overlap: 256, Window: Window{Kind: Hann}}, rigChannels)
+		acc, err := NewAccumulator(Config{FsHz: 25, SegmentLen: 512, Overlap: 256, Window: Hann}, rigChannels)
 		if err != nil {
 			b.Fatal(err)
 		}

@@ -82,9 +82,6 @@ func NewDecimator(factor, nch int, fsHz float64, next BlockWriter) (*Decimator, 
 // Taps returns the filter coefficients (symmetric, odd length).
 func (d *Decimator) Taps() []float64 { return d.taps }
 
-// Factor returns the decimation factor q.
-func (d *Decimator) Factor() int { return d.factor }
-
 // DecimationFactor returns the largest factor q that keeps maxFreqHz inside
 // the decimator's passband PassbandFraction fs/(2q), at least 1.
 func DecimationFactor(fsHz, maxFreqHz float64) int {

@@ -60,11 +60,11 @@ func TestDecimationKeepsFRF(t *testing.T) {
 	)
 	sys := testCar()
 	rec := synthRig(sys, independentPans, 0, fsHz, 83*2560, 11, outputNoiseFrac, 0)
-	direct, err := spectraOf(rec, Config{FsHz: fsHz, SegmentLen: 5120, Overlap: 2560, Window: Window{Kind: Hann}}, 3000)
+	direct, err := spectraOf(rec, Config{FsHz: fsHz, SegmentLen: 5120, Overlap: 2560, Window: Hann}, 3000)
 	if err != nil {
 		t.Fatal(err)
 	}
-	acc, err := NewAccumulator(Config{FsHz: fsHz / factor, SegmentLen: 512, Overlap: 256, Window: Window{Kind: Hann}}, rigChannels)
+	acc, err := NewAccumulator(Config{FsHz: fsHz / factor, SegmentLen: 512, Overlap: 256, Window: Hann}, rigChannels)
 	if err != nil {
 		t.Fatal(err)
 	}

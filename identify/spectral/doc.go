@@ -22,10 +22,9 @@
 // # Spectral estimates (Welch's method)
 //
 // A record is cut into segments of N samples that advance by N - overlap
-// samples; only whole segments are used. Each segment is detrended (mean or
-// least-squares line removed, or nothing) and then multiplied by the window
-// w. With X_i the transform of channel i in one segment, the spectral matrix
-// is
+// samples; only whole segments are used. Each segment has its mean removed
+// (scipy's detrend='constant') and is then multiplied by the window w. With
+// X_i the transform of channel i in one segment, the spectral matrix is
 //
 //	G[f][i][j] = c_f * mean over segments of conj(X_i[f]) X_j[f],
 //	c_f = 2/(fs sum(w^2)), except c_f = 1/(fs sum(w^2)) at DC and, for even N,
@@ -42,6 +41,8 @@
 // With input channel x and output channel y:
 //
 //	H1 = Gxy/Gxx, H2 = Gyy/Gyx, ordinary coherence = |Gxy|^2/(Gxx Gyy) = H1/H2.
+//
+// The package estimates H1 (H2 serves its tests as a check).
 //
 // With q inputs x_1..x_q (front and rear wheel pans) and an output y, the
 // multiple-input H1 solves, at each frequency, the q normal equations

@@ -34,7 +34,7 @@ const (
 // first-order bands are too narrow: documented on EstimateFRF). The true multiple coherence follows
 // from the model: Gyy.x/Gyy with Gyy.x the noise density.
 func TestErrorBandCoverage(t *testing.T) {
-	cfg := Config{FsHz: 20, SegmentLen: 512, Overlap: 256, Window: Window{Kind: Hann}, Detrend: DetrendMean}
+	cfg := Config{FsHz: 20, SegmentLen: 512, Overlap: 256, Window: Hann}
 	const nSamples = 41 * 256 // 40 segments
 	sys := testCar()
 	var n, nCoh, okMag, okPhase, okPSD, okCoh int

@@ -30,7 +30,6 @@ type BankConfig struct {
 	MinSegmentLen int // zero means 64
 	MaxSegmentLen int // zero means 16384
 	Window        Window
-	Detrend       Detrend
 	Workers       int
 }
 
@@ -60,7 +59,7 @@ func NewBank(cfg BankConfig, channels []string) (*Bank, error) {
 	b := &Bank{}
 	for n := cfg.MinSegmentLen; n <= cfg.MaxSegmentLen; n *= 2 {
 		acc, err := NewAccumulator(Config{FsHz: cfg.FsHz, SegmentLen: n, Overlap: n / 2,
-			Window: cfg.Window, Detrend: cfg.Detrend, Workers: cfg.Workers}, channels)
+			Window: cfg.Window, Workers: cfg.Workers}, channels)
 		if err != nil {
 			return nil, err
 		}

@@ -14,7 +14,6 @@ type Spectra struct {
 	SegmentLen int     // samples per segment
 	Overlap    int     // samples shared by consecutive segments
 	Window     Window
-	Detrend    Detrend
 	Segments   int // whole segments averaged
 	// EffectiveAverages is the number nd of independent averages that gives
 	// the same variance as the overlapped windowed segments (Welch, 1967).
@@ -33,27 +32,6 @@ func (s *Spectra) checkChannel(i int) {
 	if i < 0 || i >= len(s.Channels) {
 		panic(fmt.Sprintf("spectral: channel %d out of range [0, %d)", i, len(s.Channels)))
 	}
-}
-
-// PSD returns the auto spectral density of channel i.
-func (s *Spectra) PSD(i int) []float64 {
-	s.checkChannel(i)
-	p := make([]float64, len(s.G))
-	for f, g := range s.G {
-		p[f] = real(g[i][i])
-	}
-	return p
-}
-
-// CSD returns the cross spectral density G[f][i][j] (scipy's csd(x_i, x_j)).
-func (s *Spectra) CSD(i, j int) []complex128 {
-	s.checkChannel(i)
-	s.checkChannel(j)
-	c := make([]complex128, len(s.G))
-	for f, g := range s.G {
-		c[f] = g[i][j]
-	}
-	return c
 }
 
 // Coherence returns the ordinary coherence |G_ij|^2/(G_ii G_jj) between
@@ -76,23 +54,6 @@ func (s *Spectra) Coherence(i, j int) []float64 {
 		c[f] = a * a / den
 	}
 	return c
-}
-
-// H2 returns the FRF estimate Gyy/Gyx of output channel out on input
-// channel in, which noise on the output does not bias (noise on the input
-// biases it high).
-//
-// References:
-//   - J. S. Bendat and A. G. Piersol, Random Data, 4th ed., Wiley, 2010,
-//     Sec. 9.1.2.
-func (s *Spectra) H2(in, out int) []complex128 {
-	s.checkChannel(in)
-	s.checkChannel(out)
-	h := make([]complex128, len(s.G))
-	for f, g := range s.G {
-		h[f] = g[out][out] / g[out][in]
-	}
-	return h
 }
 
 // PSDRandomError returns the normalised random error 1/sqrt(nd) of the auto

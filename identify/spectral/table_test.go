@@ -55,7 +55,7 @@ func near(a, b float64) bool {
 // (magnitude and phase re-derived from re/im as a check of consistency).
 func TestWriteFRFTable(t *testing.T) {
 	rec := synthRig(testCar(), independentPans, 0, 20, 41*128, 31, outputNoiseFrac, 0)
-	sp, err := spectraOf(rec, Config{FsHz: 20, SegmentLen: 256, Overlap: 128, Window: Window{Kind: Hann}}, 500)
+	sp, err := spectraOf(rec, Config{FsHz: 20, SegmentLen: 256, Overlap: 128, Window: Hann}, 500)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -92,7 +92,7 @@ func TestWriteFRFTable(t *testing.T) {
 
 func TestWriteSpectraTable(t *testing.T) {
 	rec := synthRig(testCar(), independentPans, 0, 20, 21*128, 32, outputNoiseFrac, 0)
-	sp, err := spectraOf(rec, Config{FsHz: 20, SegmentLen: 256, Overlap: 128, Window: Window{Kind: Hann}}, 500)
+	sp, err := spectraOf(rec, Config{FsHz: 20, SegmentLen: 256, Overlap: 128, Window: Hann}, 500)
 	if err != nil {
 		t.Fatal(err)
 	}

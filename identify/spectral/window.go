@@ -2,18 +2,28 @@ package spectral
 
 import (
 	"fmt"
-	"math"
 
 	"gonum.org/v1/gonum/dsp/window"
 )
 
-// WindowKind names a data window.
-type WindowKind int
+// Window names a data window.
+//
+// Hann, Hamming and FlatTop are periodic (DFT-even): the first n samples of
+// gonum's symmetric window of length n+1, which is what scipy.signal's
+// get_window returns by default.
+//
+// References:
+//   - F. J. Harris, "On the use of windows for harmonic analysis with the
+//     discrete Fourier transform", Proc. IEEE 66(1):51-83, 1978,
+//     doi:10.1109/PROC.1978.10837.
+//   - ISO 18431-2:2004, Mechanical vibration and shock - Signal processing -
+//     Part 2: Time domain windows for Fourier Transform analysis.
+type Window int
 
 const (
 	// Hann is the periodic Hann window 0.5 - 0.5 cos(2 pi n/N), the default
 	// for random drive.
-	Hann WindowKind = iota
+	Hann Window = iota
 	// Hamming is the periodic Hamming window 0.54 - 0.46 cos(2 pi n/N).
 	Hamming
 	// FlatTop is the periodic five-term flat-top window (amplitude-accurate,
@@ -22,38 +32,11 @@ const (
 	// Rectangular applies no weighting (periodic or fully captured transient
 	// records).
 	Rectangular
-	// Exponential is exp(-t/DecayS) from the first sample of the segment, for
-	// decaying responses to a transient.
-	Exponential
-	// Force is one over the first WidthS seconds, then a half-cosine taper to
-	// zero over TaperS seconds, then zero: it keeps the pulse of a transient
-	// input and discards the noise after it.
-	Force
 )
-
-// Window is a data window with the parameters of the transient windows.
-//
-// Hann, Hamming and FlatTop are periodic (DFT-even): the first n samples of
-// gonum's symmetric window of length n+1, which is what scipy.signal's
-// get_window returns by default. The exponential window is
-// scipy.signal.windows.exponential(n, center=0, tau=DecayS*fsHz, sym=False).
-//
-// References:
-//   - F. J. Harris, "On the use of windows for harmonic analysis with the
-//     discrete Fourier transform", Proc. IEEE 66(1):51-83, 1978,
-//     doi:10.1109/PROC.1978.10837.
-//   - ISO 18431-2:2004, Mechanical vibration and shock - Signal processing -
-//     Part 2: Time domain windows for Fourier Transform analysis.
-type Window struct {
-	Kind   WindowKind
-	DecayS float64 // Exponential: time constant [s]
-	WidthS float64 // Force: length of the flat part [s]
-	TaperS float64 // Force: length of the half-cosine taper [s]
-}
 
 // String returns the window's name.
 func (w Window) String() string {
-	switch w.Kind {
+	switch w {
 	case Hann:
 		return "hann"
 	case Hamming:
@@ -62,20 +45,16 @@ func (w Window) String() string {
 		return "flattop"
 	case Rectangular:
 		return "rectangular"
-	case Exponential:
-		return fmt.Sprintf("exponential(decay %g s)", w.DecayS)
-	case Force:
-		return fmt.Sprintf("force(width %g s, taper %g s)", w.WidthS, w.TaperS)
 	}
-	return fmt.Sprintf("WindowKind(%d)", int(w.Kind))
+	return fmt.Sprintf("Window(%d)", int(w))
 }
 
-// Values returns the n window weights for a segment sampled at fsHz.
-func (w Window) Values(n int, fsHz float64) ([]float64, error) {
+// Values returns the n window weights.
+func (w Window) Values(n int) ([]float64, error) {
 	if n < 1 {
 		return nil, fmt.Errorf("spectral: window length %d, need at least 1", n)
 	}
-	switch w.Kind {
+	switch w {
 	case Hann:
 		return periodic(window.Hann, n), nil
 	case Hamming:
@@ -84,33 +63,8 @@ func (w Window) Values(n int, fsHz float64) ([]float64, error) {
 		return periodic(window.FlatTop, n), nil
 	case Rectangular:
 		return periodic(window.Rectangular, n), nil
-	case Exponential:
-		if !(w.DecayS > 0) || !(fsHz > 0) {
-			return nil, fmt.Errorf("spectral: exponential window needs a positive decay time and sample rate, got %g s at %g Hz", w.DecayS, fsHz)
-		}
-		tau := w.DecayS * fsHz
-		v := make([]float64, n)
-		for i := range v {
-			v[i] = math.Exp(-float64(i) / tau)
-		}
-		return v, nil
-	case Force:
-		if !(w.WidthS > 0) || w.TaperS < 0 || !(fsHz > 0) {
-			return nil, fmt.Errorf("spectral: force window needs a positive width, a non-negative taper and a positive sample rate, got %g s, %g s at %g Hz", w.WidthS, w.TaperS, fsHz)
-		}
-		v := make([]float64, n)
-		for i := range v {
-			tS := float64(i) / fsHz
-			switch {
-			case tS < w.WidthS:
-				v[i] = 1
-			case tS < w.WidthS+w.TaperS:
-				v[i] = 0.5 * (1 + math.Cos(math.Pi*(tS-w.WidthS)/w.TaperS))
-			}
-		}
-		return v, nil
 	}
-	return nil, fmt.Errorf("spectral: unknown window kind %d", int(w.Kind))
+	return nil, fmt.Errorf("spectral: unknown window %d", int(w))
 }
 
 // periodic returns the DFT-even form of one of gonum's symmetric windows:

@@ -80,7 +80,15 @@ func pooledResult(o Options, p *plan, ids []*identify.Identified, logPaths []str
 	method := fmt.Sprintf("pooled over %d logs (%s); each: %s", len(ids), poolingMethod, ids[0].Method)
 	pos := ingest.SensorPositionsM(p.setup.Sensors)
 	for _, m := range pooled.Modes {
-		res.Modes = append(res.Modes, compare.MeasuredJSON(m, pos, method))
+		mj := compare.MeasuredJSON(m, pos, method)
+		// A value on which the runs disagree cannot be stated with the
+		// confidence its pooled sd suggests: the mode is flagged.
+		for _, c := range pooled.Checks {
+			if c.Label == m.Label && c.Disagreement != "" {
+				mj.Flagged, mj.FlagReasons = true, append(mj.FlagReasons, c.Disagreement)
+			}
+		}
+		res.Modes = append(res.Modes, mj)
 	}
 	pj := &compare.PoolingJSON{Runs: len(ids), Method: poolingMethod, Significance: body.PoolSignificance}
 	for _, c := range pooled.Checks {

@@ -96,6 +96,9 @@ func TestPooledDrops(t *testing.T) {
 	for _, c := range out.Result.Pooling.Checks {
 		named = named || (!c.Consistent && *c.OutlierLog == odd)
 	}
+	if !out.Result.Modes[0].Flagged && !out.Result.Modes[1].Flagged {
+		t.Error("no pooled mode is flagged although the runs disagree")
+	}
 	if !named || !strings.Contains(strings.Join(out.Result.Warnings, "\n"), odd) {
 		t.Errorf("the other car's drop is not named: %+v", out.Result.Pooling.Checks)
 	}

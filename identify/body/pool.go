@@ -37,6 +37,9 @@ type PoolCheck struct {
 	// that difference.
 	Outlier  int
 	OutlierZ float64
+	// Disagreement says in a sentence which run disagrees (empty when the
+	// runs are consistent).
+	Disagreement string
 }
 
 // Pooled is the outcome of Pool.
@@ -44,7 +47,8 @@ type Pooled struct {
 	Modes  []Mode // bounce and pitch, sorted and labelled as SortAndLabel does
 	Checks []PoolCheck
 	// Disagreements say, one sentence each, which run disagrees with the
-	// others on which value (empty when every check is consistent).
+	// others on which value, and which run's own labels differ from the
+	// pooled ones (empty when every check is consistent).
 	Disagreements []string
 }
 
@@ -102,11 +106,12 @@ func Pool(runs [][]Mode, names []string) (*Pooled, error) {
 				names[i], lowerFirst(run)[0].Label, p.Modes[0].Label, nodeList(run)))
 		}
 	}
-	for _, c := range p.Checks {
+	for i, c := range p.Checks {
 		if !c.Consistent {
-			p.Disagreements = append(p.Disagreements, fmt.Sprintf(
+			p.Checks[i].Disagreement = fmt.Sprintf(
 				"%s %s: the runs disagree beyond their uncertainty (chi-square %.1f on %d degrees of freedom, p = %.2g); %s differs from the others by %.1f sd, so the pooled sd is widened %.1f times: check that run (another car, state or setup?)",
-				c.Label, c.Value, c.ChiSquare, c.DOF, c.PValue, names[c.Outlier], c.OutlierZ, c.Scale))
+				c.Label, c.Value, c.ChiSquare, c.DOF, c.PValue, names[c.Outlier], c.OutlierZ, c.Scale)
+			p.Disagreements = append(p.Disagreements, p.Checks[i].Disagreement)
 		}
 	}
 	return p, nil

@@ -21,7 +21,7 @@ type logFlags struct {
 	bandHighHz   float64
 	segment      int
 	window       string
-	errOut       func() io.Writer // the command's ErrOrStderr, for the progress bar
+	errOut       func() io.Writer // the command's ErrOrStderr, for the progress bar (nil: no bar)
 }
 
 func (f *logFlags) register(cmd *cobra.Command) {
@@ -109,7 +109,7 @@ func (f *logFlags) openLog(path string, setup *ingest.Setup) (*ingest.Reader, fu
 		opt.MinDurationS = identify.MinRigRecordS(lo)
 	}
 	done := func() {}
-	if st, err := os.Stat(path); err == nil {
+	if st, err := os.Stat(path); err == nil && f.errOut != nil {
 		opt.Progress, done = terminalProgress(f.errOut(), st.Size(), "reading "+path)
 	}
 	r, err := ingest.Open(path, opt)

@@ -3,8 +3,8 @@ module github.com/ridemodes/ridemodes
 go 1.26.8
 
 require (
-	github.com/BurntSushi/toml v1.6.0
 	github.com/mjibson/go-dsp v0.0.0-20180508042940-11479a337f12
+	github.com/pelletier/go-toml/v2 v2.4.3
 	github.com/schollz/progressbar/v3 v3.19.1
 	github.com/spf13/cobra v1.10.2
 	golang.org/x/term v0.44.0

@@ -7,10 +7,9 @@ import (
 	"math"
 	"os"
 	"regexp"
-	"strconv"
 	"strings"
 
-	"github.com/BurntSushi/toml"
+	"github.com/pelletier/go-toml/v2"
 )
 
 // Setup is a validated setup file: the vehicle's design model, the body
@@ -135,13 +134,15 @@ type Analysis struct {
 }
 
 // SetupError is a problem in a setup file. Line is 1-based (0 when the
-// problem belongs to no single line); Key is the dotted key, with the
-// 1-based entry number of an array table, e.g. "sensor[2].channel".
+// problem belongs to no single line), Column too (0 when only the line is
+// known: for values that decode but fail validation); Key is the dotted key,
+// with the 1-based entry number of an array table, e.g. "sensor[2].channel".
 type SetupError struct {
-	Path string
-	Line int
-	Key  string
-	Msg  string
+	Path   string
+	Line   int
+	Column int // 1-based, 0 when not known
+	Key    string
+	Msg    string
 }
 
 func (e *SetupError) Error() string {
@@ -149,6 +150,9 @@ func (e *SetupError) Error() string {
 	b.WriteString(e.Path)
 	if e.Line > 0 {
 		fmt.Fprintf(&b, ":%d", e.Line)
+		if e.Column > 0 {
+			fmt.Fprintf(&b, ":%d", e.Column)
+		}
 	}
 	if e.Key != "" {
 		fmt.Fprintf(&b, ": %s", e.Key)
@@ -238,39 +242,35 @@ func LoadSetup(path string) (*Setup, error) {
 
 // ParseSetup decodes and validates a setup file's content; path names it in
 // messages. Decoding is strict: an unknown or misspelt key is an error that
-// names the key and its line.
+// names the key, its line and column (the decoder's positions; the key path
+// with its array-table entry number comes from keyLocator).
 func ParseSetup(path string, data []byte) (*Setup, error) {
 	if bytes.IndexByte(data, 0) >= 0 {
 		return nil, &SetupError{Path: path, Msg: "the file holds binary data (NUL bytes); give a TOML text file"}
 	}
 	loc := newKeyLocator(data)
 	var raw rawSetup
-	md, err := toml.NewDecoder(bytes.NewReader(data)).Decode(&raw)
-	if err != nil {
-		var pe toml.ParseError
-		if ppe := (*toml.ParseError)(nil); errors.As(err, &ppe) {
-			pe = *ppe
-		} else if !errors.As(err, &pe) {
-			// Type mismatches come as plain errors: "toml: line N (last key "k"): message".
-			m := typeErrorText.FindStringSubmatch(oneLine(err.Error()))
-			if m == nil {
-				return nil, &SetupError{Path: path, Msg: oneLine(err.Error())}
+	dec := toml.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&raw); err != nil {
+		var strict *toml.StrictMissingError
+		var de *toml.DecodeError
+		msg := ""
+		switch {
+		case errors.As(err, &strict):
+			de, msg = &strict.Errors[0], "unknown key; check its spelling and table against the setup reference"
+		case errors.As(err, &de):
+			msg = strings.TrimPrefix(oneLine(de.Error()), "toml: ")
+			if m := typeErrorText.FindStringSubmatch(msg); m != nil {
+				msg = fmt.Sprintf("wrong type: a TOML %s where %s is expected; write numbers unquoted, names in quotes", m[1], tomlTypeWanted[m[2]])
+			} else {
+				msg += " (check the TOML syntax)"
 			}
-			line, _ := strconv.Atoi(m[1])
-			return nil, &SetupError{Path: path, Line: line, Key: m[2], Msg: m[3] + "; check the value's type (numbers unquoted, names in quotes)"}
+		default:
+			return nil, &SetupError{Path: path, Msg: oneLine(err.Error())}
 		}
-		// The decoder's last key is only the culprit when it sits on the error's line.
-		key := pe.LastKey
-		if loc.line(key) != pe.Position.Line {
-			key = ""
-		}
-		return nil, &SetupError{Path: path, Line: pe.Position.Line, Key: key,
-			Msg: oneLine(pe.Message) + " (check the TOML syntax and the value's type)"}
-	}
-	if und := md.Undecoded(); len(und) > 0 {
-		line, k := loc.first(und[0].String())
-		return nil, &SetupError{Path: path, Line: line, Key: k,
-			Msg: "unknown key; check its spelling and table against the setup reference"}
+		line, col := de.Position()
+		return nil, &SetupError{Path: path, Line: line, Column: col, Key: loc.at(line), Msg: msg}
 	}
 	v := validator{path: path, loc: loc}
 	s := v.setup(&raw)
@@ -281,7 +281,11 @@ func ParseSetup(path string, data []byte) (*Setup, error) {
 	return s, nil
 }
 
-var typeErrorText = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]*)"\): (.*)$`)
+// typeErrorText matches the decoder's message for a value of the wrong type.
+var typeErrorText = regexp.MustCompile(`^cannot decode TOML (\w+) into .* of type \*?(\w+)$`)
+
+// tomlTypeWanted words the Go types of rawSetup's fields for a user.
+var tomlTypeWanted = map[string]string{"float64": "a number", "int": "an integer", "string": "a quoted name", "bool": "true or false"}
 
 func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
 

@@ -89,6 +89,7 @@ func TestParseBadSetups(t *testing.T) {
 		{"sensors at one position", []edit{{"x_m = -1.2", "x_m = 0.9"}}, 15, "sensor[2].x_m", "same x_m"},
 		{"no vehicle table", []edit{{"[vehicle]", "[car]"}}, 1, "car", "unknown key"},
 		{"wrong type", []edit{{"mass_kg = 1400", `mass_kg = "heavy"`}}, 2, "vehicle.mass_kg", "type"},
+		{"wrong type in an array table", []edit{{"x_m = 0.9", "x_m = true"}}, 11, "sensor[1].x_m", "wrong type"},
 		{"syntax error", []edit{{"x_m = 0.9", "x_m 0.9"}}, 11, "", "TOML syntax"},
 		{"unknown window", []edit{{"[[input]]\nchannel = \"pf\"", "[analysis]\nwindow = \"blackmanish\"\n\n[[input]]\nchannel = \"pf\""}}, 18, "analysis.window", "unknown window"},
 		{"band upside down", []edit{{"[[input]]\nchannel = \"pf\"", "[analysis]\nband_low_hz = 5\nband_high_hz = 2\n\n[[input]]\nchannel = \"pf\""}}, 19, "analysis.band_high_hz", "must exceed"},
@@ -124,6 +125,26 @@ func TestParseBadSetups(t *testing.T) {
 				t.Errorf("message does not name the file: %s", msg)
 			}
 		})
+	}
+}
+
+// Errors the decoder finds carry the column too (1-based, as an editor
+// counts): the value for a wrong type, the key for an unknown one.
+func TestSetupErrorColumns(t *testing.T) {
+	for _, c := range []struct {
+		old, new  string
+		line, col int
+	}{
+		{"mass_kg = 1400", `mass_kg = "heavy"`, 2, 11},
+		{"x_m = -1.2", "xm = -1.2", 15, 1},
+		{"x_m = 0.9", "x_m 0.9", 11, 5},
+	} {
+		_, err := ParseSetup("car.toml", []byte(strings.Replace(goodSetup, c.old, c.new, 1)))
+		var se *SetupError
+		if !errors.As(err, &se) || se.Line != c.line || se.Column != c.col ||
+			!strings.HasPrefix(err.Error(), fmt.Sprintf("car.toml:%d:%d: ", c.line, c.col)) {
+			t.Errorf("%q: %v, want line %d column %d", c.new, err, c.line, c.col)
+		}
 	}
 }
 

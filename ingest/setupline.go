@@ -8,20 +8,14 @@ import (
 	"strings"
 )
 
-// keyLocator finds the line of a key in a TOML file. The TOML decoder reports
-// lines for syntax and type errors but not for keys it did not decode, nor for
-// values that fail validation, so this reads table headers and key names from
-// the text: enough for the flat tables of a setup file (multi-line strings and
+// keyLocator finds the line of a key in a TOML file and the key on a line.
+// The TOML decoder reports lines for the keys it rejects but not for values
+// that fail validation, so this reads table headers and key names from the
+// text: enough for the flat tables of a setup file (multi-line strings and
 // inline tables are not followed into).
 type keyLocator struct {
 	lines map[string]int // "vehicle.mass_kg", "sensor[2].channel", "sensor[2]" -> line
-	plain []located      // in file order, paths without array indices
-}
-
-type located struct {
-	path string // without array indices
-	full string // with them
-	line int
+	paths map[int]string // the reverse
 }
 
 var (
@@ -39,41 +33,37 @@ func cleanKey(k string) string {
 }
 
 func newKeyLocator(data []byte) *keyLocator {
-	loc := &keyLocator{lines: map[string]int{}}
+	loc := &keyLocator{lines: map[string]int{}, paths: map[int]string{}}
 	count := map[string]int{}
-	table, plainTable := "", ""
+	table := ""
 	sc := bufio.NewScanner(bytes.NewReader(data))
 	sc.Buffer(make([]byte, 64*1024), 1<<20)
 	for n := 1; sc.Scan(); n++ {
 		t := strings.TrimSpace(sc.Text())
+		path := ""
 		switch {
 		case t == "" || t[0] == '#':
 			continue
 		case arrayHeader.MatchString(t):
 			name := cleanKey(arrayHeader.FindStringSubmatch(t)[1])
 			count[name]++
-			table, plainTable = fmt.Sprintf("%s[%d]", name, count[name]), name
+			table = fmt.Sprintf("%s[%d]", name, count[name])
+			path = table
 		case tableHeader.MatchString(t):
 			table = cleanKey(tableHeader.FindStringSubmatch(t)[1])
-			plainTable = table
+			path = table
 		case keyLine.MatchString(t):
-			key := cleanKey(keyLine.FindStringSubmatch(t)[1])
-			full, plain := key, key
+			path = cleanKey(keyLine.FindStringSubmatch(t)[1])
 			if table != "" {
-				full, plain = table+"."+key, plainTable+"."+key
+				path = table + "." + path
 			}
-			if _, ok := loc.lines[full]; !ok {
-				loc.lines[full] = n
-			}
-			loc.plain = append(loc.plain, located{plain, full, n})
-			continue
 		default:
 			continue
 		}
-		if _, ok := loc.lines[table]; !ok {
-			loc.lines[table] = n
+		if _, ok := loc.lines[path]; !ok {
+			loc.lines[path] = n
 		}
-		loc.plain = append(loc.plain, located{plainTable, table, n})
+		loc.paths[n] = path
 	}
 	return loc
 }
@@ -87,13 +77,5 @@ func (l *keyLocator) line(path string) int {
 	return l.lines[path]
 }
 
-// first returns the first line whose path without array indices is path,
-// and that line's full path with indices (path itself when not found).
-func (l *keyLocator) first(path string) (int, string) {
-	for _, p := range l.plain {
-		if p.path == path {
-			return p.line, p.full
-		}
-	}
-	return 0, path
-}
+// at returns the path of the key or table header on a line ("" for none).
+func (l *keyLocator) at(line int) string { return l.paths[line] }

@@ -2,6 +2,7 @@ package cli
 
 import (
 	"fmt"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -18,10 +19,10 @@ func registerLogFlags(cmd *cobra.Command, o *job.Options) {
 	fl.Float64Var(&o.StartS, "start", 0, "analyse from this time in s, counted from the log's first sample")
 	fl.Float64Var(&o.EndS, "end", 0, "analyse up to this time in s (0: to the end of the log)")
 	fl.BoolVar(&o.Resample, "resample", false, "accept jittery time steps and resample onto a uniform grid (warns)")
-	fl.Float64Var(&o.BandLowHz, "band-low", 0, "analysis band, lower edge in Hz (default from [analysis], else 0.5)")
-	fl.Float64Var(&o.BandHighHz, "band-high", 0, "analysis band, upper edge in Hz (default from [analysis], else 4)")
+	fl.Float64Var(&o.BandLowHz, "band-low", 0, fmt.Sprintf("analysis band, lower edge in Hz (default from [analysis], else %g)", ingest.DefaultBandLowHz))
+	fl.Float64Var(&o.BandHighHz, "band-high", 0, fmt.Sprintf("analysis band, upper edge in Hz (default from [analysis], else %g)", ingest.DefaultBandHighHz))
 	fl.IntVar(&o.SegmentSamples, "segment", 0, "Welch segment length in samples after decimation, a power of two (default from [analysis], else chosen from the damping)")
-	fl.StringVar(&o.Window, "window", "", "spectral window: hann, hamming, flattop or rectangular (default from [analysis], else hann)")
+	fl.StringVar(&o.Window, "window", "", fmt.Sprintf("spectral window: %s (default from [analysis], else %s)", strings.Join(ingest.Windows, ", "), ingest.DefaultWindow))
 	cmd.MarkFlagRequired("setup")
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.RegisterFlagCompletionFunc("window", cobra.FixedCompletions(ingest.Windows, cobra.ShellCompDirectiveNoFileComp))

@@ -31,4 +31,9 @@
 // bounce, node) and the labels bounce and pitch are those defined by package
 // identify/body, which implements them (NodeM, BodyLabels) for the model and
 // for every route that identifies modes, and compares shapes (MAC).
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// compare layer. It may import ingest (the setup) and identify (identify/body
+// for the measured mode and the body geometry, identify/lsq for the update),
+// never plots or cmd.
 package compare

@@ -33,4 +33,9 @@
 // mode-shapes.png and time-history.png, for the figures whose inputs are
 // given. Every file is written to a temporary file in the
 // same folder and then renamed, so a failure leaves nothing behind.
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the plots
+// layer. It may import ingest (the atomic file write, sensors), identify
+// (the route data behind the figures), compare and compare/job (the
+// outcome of one analysed log), never cmd.
 package plots

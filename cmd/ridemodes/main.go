@@ -1,6 +1,3 @@
-// Command ridemodes identifies the bounce and pitch modes of a car body from
-// rig and drop test logs and sets them beside the design model. Run
-// "ridemodes --help" for the commands.
 package main
 
 import (

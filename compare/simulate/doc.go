@@ -21,4 +21,9 @@
 // fraction of each channel's clean RMS (rig) or peak absolute value (drop).
 // Every random number comes from one PCG stream seeded by Options.Seed, so a
 // log is reproducible byte for byte.
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// compare layer, beside the model it simulates. It may import ingest (the
+// setup's sensors and inputs, the log writer) and compare, never plots or
+// cmd.
 package simulate

@@ -207,7 +207,7 @@ func analyzeRig(r *ingest.Reader, done func(), af *analyzeFlags, a *analysis) (i
 	if err != nil {
 		return sum, err
 	}
-	frf, err := stage.Result()
+	frf, err := stage.Result(sum.SampleRateHz)
 	if err != nil {
 		return sum, err
 	}

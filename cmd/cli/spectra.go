@@ -64,7 +64,7 @@ resolution bias) are printed.
 			if err != nil {
 				return err
 			}
-			res, err := stage.Result()
+			res, err := stage.Result(sum.SampleRateHz)
 			if err != nil {
 				return withPath(logPath, err)
 			}

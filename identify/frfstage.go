@@ -96,6 +96,19 @@ func (o *FRFOptions) defaults() error {
 // every body sensor. Two or more pans on one axle (a four-post rig) are
 // averaged into the axle's input, with a warning when they were not driven
 // together.
+//
+// The sample rate: the blocks carry the rate known from a log's first steps
+// (ingest.Block.SampleRateHz), the whole log's rate being known only at its
+// end (ingest.Summary.SampleRateHz, fitted to every time stamp). The stage
+// uses the early rate only for what must be fixed before the first sample and
+// is set in fractions of the rate: the decimation factor q and the
+// anti-alias filter. Every frequency comes from the rate given to Result:
+// the spectra count segments in samples, so their frequency axis, densities
+// and noise bandwidth follow the final rate exactly (spectral.Bank.SetRate).
+// The two rates differ by the time stamps' rounding and jitter (ingest
+// bounds it well under 30 %), far less than the factor spectraSpan between
+// the band's upper edge and the frequency that fixed q, so the band stays
+// inside the decimator's passband.
 type FRFStage struct {
 	opt       FRFOptions
 	axleCols  [2][]int // block data columns of the front and rear pans
@@ -103,7 +116,7 @@ type FRFStage struct {
 	names     []string // stage channels: [front, rear,] sensors...
 	nIn       int
 
-	fsHz  float64              // rate of the stream
+	fsHz  float64              // rate of the stream: early until Result
 	q     int                  // decimation factor (1: none)
 	sink  spectral.BlockWriter // decimator, or the accumulators directly
 	bank  *spectral.Bank       // when the segment length is chosen from the data
@@ -198,11 +211,24 @@ func NewFRFStage(channels []string, sensors []ingest.Sensor, inputs []ingest.Inp
 	return s, nil
 }
 
-// start builds the decimator and the accumulators once the stream's rate is known.
-func (s *FRFStage) start(fsHz float64) error {
+// checkNyquist refuses a band that reaches the Nyquist frequency of a log
+// sampled at fsHz.
+func (s *FRFStage) checkNyquist(fsHz float64) error {
+	if !(fsHz > 0) || math.IsInf(fsHz, 0) {
+		return fmt.Errorf("identify: sample rate %g Hz, need a positive finite rate", fsHz)
+	}
 	if s.opt.BandHighHz >= fsHz/2 {
 		return fmt.Errorf("identify: the band's upper edge %g Hz is at or above the Nyquist frequency %.6g Hz of the log",
 			s.opt.BandHighHz, fsHz/2)
+	}
+	return nil
+}
+
+// start builds the decimator and the accumulators from the stream's early
+// rate (see FRFStage).
+func (s *FRFStage) start(fsHz float64) error {
+	if err := s.checkNyquist(fsHz); err != nil {
+		return err
 	}
 	s.fsHz = fsHz
 	s.q = spectral.DecimationFactor(fsHz, math.Min(spectraSpan*s.opt.BandHighHz, 0.4*fsHz))
@@ -292,10 +318,25 @@ type FRFResult struct {
 	Warnings              []string
 }
 
-// Result finishes the estimate after the last block.
-func (s *FRFStage) Result() (*FRFResult, error) {
+// Result finishes the estimate after the last block. sampleRateHz is the
+// stream's rate over the whole log (ingest.Summary.SampleRateHz): every
+// frequency of the result comes from it.
+func (s *FRFStage) Result(sampleRateHz float64) (*FRFResult, error) {
 	if s.sink == nil {
 		return nil, errors.New("identify: the log held no samples")
+	}
+	if err := s.checkNyquist(sampleRateHz); err != nil {
+		return nil, err
+	}
+	s.fsHz = sampleRateHz
+	var err error
+	if s.bank != nil {
+		err = s.bank.SetRate(sampleRateHz / float64(s.q))
+	} else {
+		err = s.acc.SetRate(sampleRateHz / float64(s.q))
+	}
+	if err != nil {
+		return nil, err
 	}
 	r := &FRFResult{DecimationFactor: s.q, InputRateHz: s.fsHz, BandLowHz: s.opt.BandLowHz, BandHighHz: s.opt.BandHighHz}
 	band := [2]float64{s.opt.BandLowHz, s.opt.BandHighHz}
@@ -310,7 +351,6 @@ func (s *FRFStage) Result() (*FRFResult, error) {
 		r.Reasons = append(r.Reasons, fmt.Sprintf("decimated by %d from %.6g Hz to %.6g Hz (anti-alias FIR) before the FFTs: the band ends at %g Hz",
 			s.q, s.fsHz, s.fsHz/float64(s.q), s.opt.BandHighHz))
 	}
-	var err error
 	if s.bank != nil {
 		r.Choice, r.Spectra, err = s.bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band, MaxBias: s.opt.MaxResolutionBias, MinAverages: fitMinAverages})
 		if err != nil {

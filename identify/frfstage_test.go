@@ -53,7 +53,7 @@ func fourPostFRF(t *testing.T, o simulate.Options, fo FRFOptions, edit func(*sim
 			t.Fatal(err)
 		}
 	}
-	frf, err := stage.Result()
+	frf, err := stage.Result(log.RateHz)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -147,7 +147,7 @@ func Spectra(ctx context.Context, r *ingest.Reader, setup *ingest.Setup, test st
 	if err != nil {
 		return nil, sum, err
 	}
-	frf, err := stage.Result()
+	frf, err := stage.Result(sum.SampleRateHz)
 	return frf, sum, err
 }
 

@@ -30,9 +30,32 @@
 //   - Rows end in "\n" or "\r\n"; a line longer than MaxLineBytes (1 MiB), a NUL
 //     byte or a blank line followed by more rows is an error; blank lines at the end
 //     are not.
-//   - Sampling must be uniform: each step within 1 % of the median of the first 32
-//     steps, time never repeating or going backwards. Options.Resample accepts a
-//     jittery log and interpolates it linearly onto a uniform grid, with a warning.
+//   - Sampling must be uniform: each time step within 1 % of the reference step
+//     (the median of the first 32 steps), time never repeating or going backwards.
+//     On top of the 1 %, a step may differ from the reference by the rounding of
+//     the time stamps, one unit in their last decimal place u: a 256 Hz log
+//     written to 4 decimals has steps of 0.0039 s and 0.0040 s. u is 10^-d of
+//     the time column's unit, d the decimal places that most stamps have (an
+//     exponent counts), counted over the first 512 KiB of rows and at least the
+//     first 33. It is allowed when the first 32 steps show the rounding (differ
+//     by u/2 or more: a 200 Hz log's exact 0.005 s steps keep the plain 1 %) and
+//     u is under a quarter of the step (coarser stamps cannot tell rounding from
+//     jitter; the error then says so). Options.Resample accepts a jittery log
+//     and interpolates it linearly onto a uniform grid, with a warning.
+//   - The sample rate (Summary.SampleRateHz) is 1/dt of the least-squares line
+//     t_i = a + i dt through every time stamp of the log (the rows outside the
+//     window too), fitted as the rows stream by. Rounded stamps average out: for
+//     N stamps rounded to u the relative error is at most 1.5 u/(N dt), about
+//     (u/dt) N^-1.5 if the rounding errors are independent, where the first
+//     steps' median can be a whole u off (255.754 Hz for 256 Hz written to 4
+//     decimals). That early reference serves only the per-step check, the
+//     resampling grid when no rate is given (the grid's rate is exact for the
+//     interpolated samples, so it is the rate reported) and Block.SampleRateHz,
+//     which a consumer may use to lay out a filter before the end of the log,
+//     never to compute a frequency. Summary.T0S is the first delivered sample's
+//     own stamp, as written (the fitted line differs from it by the stamp's
+//     rounding and jitter); sample k lies at T0S + k/SampleRateHz to within a
+//     few units of that rounding, plus the jitter.
 //
 // Every error is a *ParseError that names the file, the line (1-based, as an
 // editor counts; 0 for the whole log) and the column (its header name), and wraps
@@ -44,6 +67,7 @@
 // consumer, in memory independent of the log's length (a few MiB: the read
 // chunks in flight, the blocks and the checks). Reading and hashing run on one
 // goroutine and parsing on up to four more, so that parsing uses the machine's
-// cores; the consumer and the checks run on the caller's goroutine, in file
-// order. ReadAll keeps the whole (windowed) log in memory instead.
+// cores; the consumer, the checks and the fit of the sample rate run on the
+// caller's goroutine, in file order. ReadAll keeps the whole (windowed) log in
+// memory instead.
 package ingest

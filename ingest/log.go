@@ -30,8 +30,9 @@ type Options struct {
 
 	// Resample, an explicit opt-in, accepts a log whose time steps jitter by
 	// more than 1 % and interpolates it linearly onto a uniform grid (step:
-	// 1/SampleRateHz when given, else the median of the log's first 32 steps),
-	// with a WarnResampled warning. Linear interpolation is a low-pass of its
+	// 1/SampleRateHz when given, else the median of the log's first 32 steps,
+	// the rate of the interpolated samples exactly), with a WarnResampled
+	// warning that states the log's own rate, fitted to all its stamps. Linear interpolation is a low-pass of its
 	// own (sinc^2 in frequency): fine for body modes far below the sample
 	// rate, not for content near Nyquist. Time going backwards or repeating is
 	// an error even with Resample. A log without a time column is uniform by
@@ -100,13 +101,16 @@ type Block struct {
 	// Start is the index of the block's first sample within the window.
 	Start int
 	// TimeS is the time of the block's first sample as the log counts it
-	// (s); sample j of the block is at TimeS + j/SampleRateHz.
+	// (s); sample j of the block is at about TimeS + j/SampleRateHz.
 	TimeS float64
-	// SampleRateHz is the stream's rate, known from the first rows: with a
-	// time column 1/(median of the first 32 steps), else the grid's or the
-	// given rate. Summary.SampleRateHz, from the whole log, is the precise
-	// one; the two agree within the 1 % jitter tolerance (in practice to
-	// the time column's digits).
+	// SampleRateHz is the stream's rate as far as the first rows tell it:
+	// with a time column 1/(median of the first 32 steps), which can be a
+	// unit of the stamps' last decimal off per step (255.754 Hz for a 256 Hz
+	// log written to 4 decimals); else the grid's or the given rate, which
+	// are exact. It is for what must be fixed before the end of the log and
+	// is set in fractions of the rate (a decimation factor, a filter's
+	// taps). Frequencies must come from Summary.SampleRateHz, fitted to the
+	// whole log. The two differ by at most the jitter check's tolerance.
 	SampleRateHz float64
 	Data         [][]float64
 }
@@ -138,11 +142,14 @@ type Summary struct {
 	Samples int `json:"samples"`
 	// Rows is the number of data rows in the whole file.
 	Rows int `json:"rows"`
-	// SampleRateHz is the uniform rate of the delivered samples: from the
-	// time column, (rows-1)/(t_last-t_first) over the whole log; the
-	// grid's rate when resampled; Options.SampleRateHz without a time column.
+	// SampleRateHz is the uniform rate of the delivered samples, the one
+	// every frequency is computed with: from the time column, 1/dt of the
+	// least-squares line t_i = a + i dt through every stamp of the log (see
+	// the package documentation); the grid's rate when resampled;
+	// Options.SampleRateHz without a time column.
 	SampleRateHz float64 `json:"sample_rate_hz"`
-	// T0S is the time of the first delivered sample as the log counts it (s).
+	// T0S is the time of the first delivered sample as the log counts it
+	// (s): its own stamp, not the fitted line's value there.
 	T0S float64 `json:"t0_s"`
 	// DurationS is the record length Samples/SampleRateHz (s).
 	DurationS float64 `json:"duration_s"`

@@ -238,3 +238,64 @@ func classifyWord(b []byte, delim byte) int {
 	}
 	return numBad
 }
+
+// decimalsOf returns the decimal places of a number that scanFloat accepted
+// (b holds exactly its text): the digits after the separator sep less the
+// exponent, so one unit in the last place is 10^-decimalsOf ("0.0039" 4,
+// "3.9e-3" 4, "12" 0, "1.2e3" -2).
+func decimalsOf(b []byte, sep byte) int {
+	d, i := 0, 0
+	for i < len(b) && b[i] != sep && b[i]|0x20 != 'e' {
+		i++
+	}
+	if i < len(b) && b[i] == sep {
+		for i++; i < len(b) && b[i]-'0' <= 9; i++ {
+			d++
+		}
+	}
+	if i < len(b) && b[i]|0x20 == 'e' {
+		i++
+		neg := i < len(b) && b[i] == '-'
+		if i < len(b) && (b[i] == '-' || b[i] == '+') {
+			i++
+		}
+		exp := 0
+		for ; i < len(b) && b[i]-'0' <= 9; i++ {
+			if exp < 100000 {
+				exp = exp*10 + int(b[i]-'0')
+			}
+		}
+		if neg {
+			exp = -exp
+		}
+		d -= exp
+	}
+	return d
+}
+
+// placeCounts counts numbers by their decimal places (decimalsOf), those
+// outside 0..maxPlaces in the nearest end.
+type placeCounts [maxPlaces + 1]int32
+
+const maxPlaces = 24
+
+func (c *placeCounts) add(places int) { c[min(max(places, 0), maxPlaces)]++ }
+
+// merge adds the counts of o.
+func (c *placeCounts) merge(o *placeCounts) {
+	for i, n := range o {
+		c[i] += n
+	}
+}
+
+// mode returns the most common decimal places (the larger on a tie), and
+// false when nothing was counted.
+func (c *placeCounts) mode() (int, bool) {
+	best := -1
+	for i, n := range c {
+		if n > 0 && (best < 0 || n >= c[best]) {
+			best = i
+		}
+	}
+	return best, best >= 0
+}

@@ -18,6 +18,9 @@ type rowParser struct {
 	slot      []int32
 	scales    []float64
 	cells     [][]byte
+	// timePlaces counts the time cells parsed since the caller last reset
+	// it by their decimal places.
+	timePlaces placeCounts
 }
 
 func (r *Reader) newRowParser() *rowParser {
@@ -66,18 +69,20 @@ func (p *rowParser) parseRow(b []byte, vals []float64) (float64, error) {
 			return p.parseQuotedRow(b, vals)
 		}
 		f, end, st := scanFloat(b, pos, sep, delim)
+		numEnd := end
 		for end < n && (b[end] == ' ' || (b[end] == '\t' && delim != '\t')) {
 			end++
 		}
 		if st != numOK || (end < n && b[end] != delim) || end == pos {
 			return 0, p.cellErr(b, c, pos, st)
 		}
-		pos = end
 		if s == slotTime {
 			t = f
+			p.timePlaces.add(decimalsOf(b[pos:numEnd], sep))
 		} else {
 			vals[s] = f * p.scales[s]
 		}
+		pos = end
 	}
 	if pos < n {
 		// more cells than the header: allowed only for one empty trailing cell
@@ -117,6 +122,7 @@ func (p *rowParser) parseQuotedRow(b []byte, vals []float64) (float64, error) {
 		}
 		if s == slotTime {
 			t = f
+			p.timePlaces.add(decimalsOf(cell, p.sep))
 		} else {
 			vals[s] = f * p.scales[s]
 		}

@@ -88,7 +88,7 @@ func newChanQuality(name string, fs float64) *chanQuality {
 
 // add takes a block: its samples d, their file lines, the index of d[0] in
 // the window, and the window's offset from the log's first sample.
-func (q *chanQuality) add(d []float64, lines []int, start int, firstT, outT0, fs float64) {
+func (q *chanQuality) add(d []float64, lines []int, start int, firstT, outT0 float64) {
 	q.offsetS = outT0 - firstT
 	cur, curLen, curStart := q.cur.val, q.cur.len, q.cur.start
 	maxV, minV := q.max.val, q.min.val
@@ -144,7 +144,10 @@ func (q *chanQuality) timeOf(sample int) *float64 {
 	return &t
 }
 
-func (q *chanQuality) finish(st runningStats) []Warning {
+// finish returns the channel's warnings; fs is the whole log's sample rate,
+// which sets the times and durations they state.
+func (q *chanQuality) finish(st runningStats, fs float64) []Warning {
+	q.fs = fs
 	q.endRun()
 	q.cur = run{val: math.NaN()}
 	var w []Warning
@@ -197,7 +200,7 @@ func (q *chanQuality) finish(st runningStats) []Warning {
 	}
 	if q.hp != nil {
 		gravity := math.Abs(math.Abs(st.mean)-standardGravity) < gravityBandFrac*standardGravity && sd < standardGravity
-		if res, ok := q.hp.result(); ok && res.highPass && !gravity {
+		if res, ok := q.hp.result(fs); ok && res.highPass && !gravity {
 			w = append(w, Warning{Code: WarnHighPass, Channel: q.name, Message: fmt.Sprintf(
 				"the spectrum falls away below 1 Hz as a high-pass (AC-coupled, IEPE-type) accelerometer's does: the 0.1-0.2 Hz level is %.0f dB under the 0.25-0.45 Hz level (power rising as about f^%.1f) and the 0.1-0.25 Hz level %.0f dB under the 0.8-2 Hz level. Such a sensor shifts the phase at the body modes and biases damping and mode shapes: use DC-response accelerometers, or ignore this if the drive had no content below 0.5 Hz",
 				-10*math.Log10(res.lowMid), res.slope, -10*math.Log10(res.dropRatio))})

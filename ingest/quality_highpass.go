@@ -37,8 +37,7 @@ import "math"
 // drive with no content below 0.5 Hz (the warning says so), and a channel
 // whose mean is about 1 g (a DC sensor reading gravity) is not flagged.
 type hpDetector struct {
-	m       int     // samples averaged per decimated point
-	fd      float64 // decimated rate (Hz)
+	m       int // samples averaged per decimated point
 	acc     float64
 	accN    int
 	ring    [hpSegment]float64
@@ -88,7 +87,7 @@ func newHPDetector(fs float64) *hpDetector {
 	if fd < 2.2*hpRefHiHz {
 		return nil // too slow a log to see 2 Hz
 	}
-	d := &hpDetector{m: m, fd: fd}
+	d := &hpDetector{m: m}
 	d.kMax = int(math.Ceil(hpRefHiHz*hpSegment/fd)) + 1
 	if d.kMax > hpSegment/2 {
 		d.kMax = hpSegment / 2
@@ -158,12 +157,14 @@ type hpResult struct {
 	highPass  bool
 }
 
-// result applies the test; ok is false when the record is too short.
-func (d *hpDetector) result() (hpResult, bool) {
+// result applies the test to a log sampled at fs (the whole log's rate,
+// which may differ a little from the early one the detector was set up
+// with); ok is false when the record is too short.
+func (d *hpDetector) result(fs float64) (hpResult, bool) {
 	if d.segs < hpMinSegments {
 		return hpResult{}, false
 	}
-	df := d.fd / hpSegment
+	df := fs / float64(d.m) / hpSegment
 	band := func(lo, hi float64) (float64, bool) {
 		var p float64
 		n := 0

@@ -191,7 +191,7 @@ func TestHighPassDetector(t *testing.T) {
 		} {
 			d := newHPDetector(fs)
 			d.add(c.x)
-			res, ok := d.result()
+			res, ok := d.result(fs)
 			if !ok || res.highPass != c.want {
 				t.Errorf("seed %d, %s: high-pass %v (low/mid %.2f, low/ref %.3f), want %v", seed, c.name, res.highPass, res.lowMid, res.dropRatio, c.want)
 			}
@@ -215,14 +215,14 @@ func TestHighPassDetector(t *testing.T) {
 	// too short a record is not tested
 	d := newHPDetector(fs)
 	d.add(highPass1(noise(6000, 1, 1), fs, 0.5))
-	if _, ok := d.result(); ok {
+	if _, ok := d.result(fs); ok {
 		t.Error("60 s record tested")
 	}
 	// at 1 kHz the decimation keeps it working
 	const fs2 = 1000.0
 	d = newHPDetector(fs2)
 	d.add(highPass1(noise(200000, 4, 1), fs2, 0.5))
-	if res, ok := d.result(); !ok || !res.highPass {
+	if res, ok := d.result(fs2); !ok || !res.highPass {
 		t.Errorf("1 kHz: %+v %v", res, ok)
 	}
 	if newHPDetector(4) != nil {

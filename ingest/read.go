@@ -22,11 +22,13 @@ const MaxLineBytes = 1 << 20
 const DefaultBlockSamples = 4096
 
 // jitterTolerance is the largest accepted deviation of one time step from
-// the log's step, as a fraction of the step (the contract's 1 %).
+// the log's step, as a fraction of the step (the contract's 1 %), before the
+// allowance for the stamps' rounding (streamer.stampAllowance).
 const jitterTolerance = 0.01
 
 // refSteps is the number of first time steps whose median is the reference
-// step for the jitter check (and the grid step when resampling).
+// step for the jitter check (and the grid step when resampling). The sample
+// rate is not taken from it but fitted to every stamp (stampFit).
 const refSteps = 32
 
 // Reader reads one log. Open (or NewReader) reads the notes and the header;

@@ -37,6 +37,7 @@ type parsedChunk struct {
 	job           *job
 	rows          int
 	t             []float64   // time (s), with a time column
+	timePlaces    placeCounts // the time cells by their decimal places
 	vals          [][]float64 // per channel, SI
 	firstNonBlank int         // line of the chunk's first non-blank line, 0 if none
 	blank         int         // first line of a run of blank lines at the end of the chunk, 0 if none
@@ -146,6 +147,8 @@ func lastLineLen(b []byte) int { return len(b) - (bytes.LastIndexByte(b, '\n') +
 // parseJob parses the lines of a job into c.
 func (p *rowParser) parseJob(j *job, c *parsedChunk, nch int, timeScale float64, vals []float64) {
 	c.reset(j, nch, j.nLines)
+	p.timePlaces = placeCounts{}
+	defer func() { c.timePlaces = p.timePlaces }()
 	buf := j.buf
 	// one pass over the chunk for NUL bytes; lines are looked at only if
 	// there is one

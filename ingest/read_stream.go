@@ -20,14 +20,24 @@ type streamer struct {
 	prevLine      int
 
 	// reference step: the median of the first refSteps steps (time column)
-	// or 1/SampleRateHz
-	haveRef  bool
-	dt       float64
-	preT     []float64
-	preLine  []int
-	preVals  []float64
-	procN    int // rows through process
-	procPrev float64
+	// or 1/SampleRateHz; the steps accepted, [stepLo, stepHi]
+	haveRef        bool
+	dt             float64
+	stepLo, stepHi float64
+	preT           []float64
+	preLine        []int
+	preVals        []float64
+	procN          int // rows through process
+	procPrev       float64
+
+	// the time stamps' resolution: their decimal places as counted until
+	// the reference is fixed, the spread of the reference steps, and the
+	// allowance for the stamps' rounding (s)
+	stampPlaces placeCounts
+	refSpread   float64
+	stampAllow  float64
+	// the least-squares line through every time stamp
+	fit stampFit
 
 	// irregular steps and gaps (counted with Resample; an error without)
 	nJitter    int
@@ -103,6 +113,12 @@ func (s *streamer) setRef(dt float64) error {
 		}
 		s.fsOut = 1 / s.gridDt
 	}
+	if s.hasTime {
+		s.stampAllow = s.stampAllowance(dt)
+		s.fit.start(s.firstT, dt)
+	}
+	s.stepLo = dt*(1-jitterTolerance) - s.stampAllow
+	s.stepHi = dt*(1+jitterTolerance) + s.stampAllow
 	step := dt
 	if s.resample {
 		step = s.gridDt
@@ -130,6 +146,9 @@ const (
 // The first rows (until the reference step is known) and every row of a
 // resampled log go one by one through row; the rest in bulk through batch.
 func (s *streamer) chunk(c *parsedChunk) error {
+	if !s.haveRef {
+		s.stampPlaces.merge(&c.timePlaces)
+	}
 	k := 0
 	for ; k < c.rows && (!s.haveRef || s.resample); k++ {
 		for ch := range s.rowVals {
@@ -159,7 +178,7 @@ func (s *streamer) batch(c *parsedChunk, from int) error {
 	if s.hasTime {
 		t = c.t[from:c.rows]
 		prev := s.prevT
-		lo, hi := s.dt*(1-jitterTolerance), s.dt*(1+jitterTolerance)
+		lo, hi := s.stepLo, s.stepHi
 		for i, ti := range t {
 			step := ti - prev
 			if !(step >= lo && step <= hi) {
@@ -172,6 +191,7 @@ func (s *streamer) batch(c *parsedChunk, from int) error {
 		}
 		s.prevT = prev
 		s.procPrev = prev
+		s.fit.addRun(t)
 	} else {
 		s.prevT = float64(base+rows-1) * s.dt
 	}
@@ -245,9 +265,52 @@ func (s *streamer) checkStep(t float64, line int) error {
 			"time %s is %s after the previous sample, a gap of about %.0f steps of %s: samples missing? (the Resample option bridges gaps by linear interpolation)",
 			fmtS(t), fmtS(step), step/s.dt, fmtS(s.dt))
 	}
+	accepted := "at most 1 % is accepted"
+	off := math.Abs(step - s.dt)
+	switch u := s.stampUnit(); {
+	case s.stampAllow > 0:
+		accepted = fmt.Sprintf("at most 1 %% is accepted, and %s more for the time stamps' rounding", fmtS(s.stampAllow))
+	case u >= stampUnitMaxSteps*s.dt:
+		accepted += fmt.Sprintf("; the time stamps' last decimal place, %s, is %.0f %% of the step, too coarse to check it: write the time with more decimals, or drop the time column and give the sample rate",
+			fmtS(u), 100*u/s.dt)
+	case math.Abs(off-u) <= u/2:
+		accepted += fmt.Sprintf("; the step is off by about one unit of the time stamps' last decimal place, %s, but the first steps showed no such rounding: write the time with more decimals",
+			fmtS(u))
+	}
 	return r.errAt(line, 0, ErrNonUniform,
-		"time %s is %s after the previous sample, where the log's step is %s (%.1f %% off; at most 1 %% is accepted); the Resample option interpolates such a log onto a uniform grid",
-		fmtS(t), fmtS(step), fmtS(s.dt), 100*math.Abs(step-s.dt)/s.dt)
+		"time %s is %s after the previous sample, where the log's step is %s (%.1f %% off; %s); the Resample option interpolates such a log onto a uniform grid",
+		fmtS(t), fmtS(step), fmtS(s.dt), 100*off/s.dt, accepted)
+}
+
+// stampUnitMaxSteps bounds the rounding allowance of the jitter check: a
+// time stamp's last decimal place of a quarter step or more is not allowed
+// for (such stamps cannot tell rounding from jitter).
+const stampUnitMaxSteps = 0.25
+
+// stampUnit is one unit in the last decimal place of the time stamps (s),
+// for the decimal places that most of the stamps read before the reference
+// step was fixed have: all of them in a log written with a fixed number of
+// decimals; in one written in the shortest form, the common count, which the
+// few stamps that carry a jittered time do not change. 0 before any.
+func (s *streamer) stampUnit() float64 {
+	d, ok := s.stampPlaces.mode()
+	if !ok {
+		return 0
+	}
+	return math.Pow(10, -float64(d)) * s.r.timeScale
+}
+
+// stampAllowance is how far rounding the time stamps can move a step off the
+// reference step dt: two stamps each rounded by up to half a unit in the
+// last place u move their difference by up to u. It is u when u is under
+// stampUnitMaxSteps of the step and the reference steps show the rounding
+// (they differ by u/2 or more), else 0: stamps that are exact, such as a
+// 200 Hz log's 0.005 s steps written to 3 decimals, keep the plain 1 %.
+func (s *streamer) stampAllowance(dt float64) float64 {
+	if u := s.stampUnit(); u < stampUnitMaxSteps*dt && s.refSpread >= u/2 {
+		return u
+	}
+	return 0
 }
 
 // row takes one parsed row: t in seconds (ignored without a time column),
@@ -283,6 +346,7 @@ func (s *streamer) replay() error {
 		steps[i] = s.preT[i+1] - s.preT[i]
 	}
 	sort.Float64s(steps)
+	s.refSpread = steps[len(steps)-1] - steps[0]
 	m := len(steps) / 2
 	dt := steps[m]
 	if len(steps)%2 == 0 {
@@ -301,9 +365,12 @@ func (s *streamer) replay() error {
 }
 
 func (s *streamer) process(t float64, vals []float64, line int) error {
+	if s.hasTime {
+		s.fit.addOne(t)
+	}
 	if s.procN > 0 && s.hasTime {
 		step := t - s.procPrev
-		if math.Abs(step-s.dt) > jitterTolerance*s.dt {
+		if !(step >= s.stepLo && step <= s.stepHi) {
 			if !s.resample {
 				s.prevT = s.procPrev
 				s.prevLine = line - 1
@@ -412,7 +479,7 @@ func (s *streamer) flush() error {
 		d := s.data[k][:s.n]
 		s.views[k] = d
 		s.stats[k].add(d)
-		s.quality[k].add(d, s.lines[:s.n], start, s.firstT, s.outT0, s.fsOut)
+		s.quality[k].add(d, s.lines[:s.n], start, s.firstT, s.outT0)
 	}
 	b := Block{Start: start, TimeS: s.blkT0, SampleRateHz: s.fsOut, Data: s.views}
 	s.n = 0
@@ -439,7 +506,7 @@ func (s *streamer) finish() (Summary, error) {
 	span := s.prevT - s.firstT
 	fs := s.fsOut
 	if s.hasTime && !s.resample {
-		fs = float64(s.rows-1) / span
+		fs = 1 / s.fit.step()
 	}
 	half := 0.5 / fs
 	if s.startS > span+half {
@@ -480,7 +547,7 @@ func (s *streamer) finish() (Summary, error) {
 	sum.Warnings = append(sum.Warnings, r.warnings...)
 	sum.Warnings = append(sum.Warnings, s.logWarnings(fs)...)
 	for k, q := range s.quality {
-		sum.Warnings = append(sum.Warnings, q.finish(s.stats[k])...)
+		sum.Warnings = append(sum.Warnings, q.finish(s.stats[k], fs)...)
 	}
 	sum.SHA256 = r.sha()
 	return sum, nil
@@ -490,7 +557,7 @@ func (s *streamer) finish() (Summary, error) {
 func (s *streamer) logWarnings(fs float64) []Warning {
 	var w []Warning
 	if s.resample {
-		logFs := 1 / s.dt
+		logFs := 1 / s.fit.step()
 		msg := ""
 		if s.nJitter > 0 {
 			msg = fmt.Sprintf("%d time steps were off the log's step %s by more than 1 %% (the first, %s, at line %d); the log was interpolated linearly onto a uniform %.6g Hz grid",

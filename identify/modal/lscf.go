@@ -7,6 +7,8 @@ import (
 	"sort"
 
 	"gonum.org/v1/gonum/mat"
+
+	"github.com/ridemodes/ridemodes/identify/spectral"
 )
 
 // band is the fit's view of an FRFSet: the usable bins in the band, with
@@ -26,7 +28,7 @@ func newBand(set *FRFSet, loHz, hiHz float64) (*band, int) {
 	b := &band{set: set, loHz: loHz, hiHz: hiHz, pairs: set.outputs() * set.inputs()}
 	skipped := 0
 	for k, f := range set.FreqHz {
-		if f < loHz || f > hiHz || f <= 0 {
+		if !spectral.InBand([2]float64{loHz, hiHz}, f) || f <= 0 {
 			continue
 		}
 		if !set.usable(k) {

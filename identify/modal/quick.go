@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"github.com/ridemodes/ridemodes/identify/spectral"
 )
 
 // MaxHalfPowerDamping is the damping ratio above which the half-power rule
@@ -59,7 +61,7 @@ func QuickEstimate(set *FRFSet, bandLoHz, bandHiHz float64) ([]QuickMode, []Warn
 	c := Indicator(set)
 	var ks []int
 	for k, f := range c.FreqHz {
-		if f >= bandLoHz && f <= bandHiHz && !math.IsNaN(c.Singular[0][k]) {
+		if spectral.InBand([2]float64{bandLoHz, bandHiHz}, f) && !math.IsNaN(c.Singular[0][k]) {
 			ks = append(ks, k)
 		}
 	}

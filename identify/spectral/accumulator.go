@@ -236,6 +236,19 @@ func (l *lane) process(a *Accumulator) {
 	}
 }
 
+// SetRate replaces the sample rate, for a stream whose rate is known
+// precisely only at its end (package ingest fits it to every time stamp of
+// a log). Segments are counted in samples, so what was accumulated stands and
+// only what Spectra derives from the rate follows it, exactly: the bin
+// frequencies k fs/N, the density scale 1/fs and the noise bandwidth.
+func (a *Accumulator) SetRate(fsHz float64) error {
+	if !(fsHz > 0) || math.IsInf(fsHz, 0) {
+		return fmt.Errorf("spectral: sample rate %g Hz, need a positive finite rate", fsHz)
+	}
+	a.cfg.FsHz = fsHz
+	return nil
+}
+
 // Spectra returns the estimate from the whole segments written so far
 // (writing may continue afterwards). It fails with a NonFiniteError if a bad
 // sample was written and with a ShortRecordError before the first whole

@@ -1,7 +1,9 @@
 package spectral
 
 import (
+	"math"
 	"math/cmplx"
+	"math/rand/v2"
 	"testing"
 )
 
@@ -57,5 +59,83 @@ func TestEffectiveAveragesHann(t *testing.T) {
 	}
 	if got := noiseBandwidthBins(w); got-1.5 > tol || 1.5-got > tol {
 		t.Errorf("Hann noise bandwidth %g bins, want 1.5 (Harris 1978)", got)
+	}
+}
+
+// TestSetRateEqualsTheFinalRate: an accumulator set up at one rate and given
+// another before Spectra matches one set up at the other rate from the
+// start, to round-off (the rate only labels the samples): bin frequencies,
+// densities, noise bandwidth, and for a window set in seconds the window as
+// applied.
+func TestSetRateEqualsTheFinalRate(t *testing.T) {
+	const tol = 1e-14
+	const early, final = 100.0, 98.4 // the first steps' median 1.6 % off, say
+	rng := rand.New(rand.NewPCG(7, 7))
+	x := make([][]float64, 2)
+	for ch := range x {
+		x[ch] = make([]float64, 10000)
+		for i := range x[ch] {
+			x[ch][i] = rng.NormFloat64()
+		}
+	}
+	for _, w := range []Window{Hann, Hamming} {
+		cfg := Config{FsHz: early, SegmentLen: 1024, Overlap: 512, Window: w}
+		a, err := NewAccumulator(cfg, []string{"a", "b"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		a.Write(x)
+		if err := a.SetRate(final); err != nil {
+			t.Fatal(err)
+		}
+		got, err := a.Spectra()
+		if err != nil {
+			t.Fatal(err)
+		}
+		cfg.FsHz = final
+		b, err := NewAccumulator(cfg, []string{"a", "b"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		b.Write(x)
+		want, err := b.Spectra()
+		if err != nil {
+			t.Fatal(err)
+		}
+		rel := func(p, q float64) bool { return math.Abs(p-q) <= tol*math.Abs(q) }
+		if got.FsHz != final || !rel(got.NoiseBandwidthHz, want.NoiseBandwidthHz) {
+			t.Errorf("%v: rate %g, Be %g vs %g", w, got.FsHz, got.NoiseBandwidthHz, want.NoiseBandwidthHz)
+		}
+		for f := range want.G {
+			if !rel(got.FreqsHz[f], want.FreqsHz[f]) {
+				t.Fatalf("%v: bin %d at %g Hz, want %g Hz", w, f, got.FreqsHz[f], want.FreqsHz[f])
+			}
+			for i := range want.G[f] {
+				for j := range want.G[f][i] {
+					scale := math.Sqrt(real(want.G[f][i][i]) * real(want.G[f][j][j]))
+					if cmplx.Abs(got.G[f][i][j]-want.G[f][i][j]) > tol*scale {
+						t.Fatalf("%v: bin %d (%d,%d): %v, want %v", w, f, i, j, got.G[f][i][j], want.G[f][i][j])
+					}
+				}
+			}
+		}
+	}
+	a, _ := NewAccumulator(Config{FsHz: early, SegmentLen: 64, Window: Hann}, []string{"a"})
+	if a.SetRate(0) == nil || a.SetRate(math.Inf(1)) == nil {
+		t.Error("a zero or infinite rate accepted")
+	}
+}
+
+// TestInBandEdges: a bin on a band edge for a round rate stays in the band
+// for the rate a least-squares fit of rounded time stamps gives.
+func TestInBandEdges(t *testing.T) {
+	for _, fs := range []float64{256, 255.99999999999778, 256.0000001} {
+		f := 24 * fs / 12 / 1024 // bin 24 after decimation by 12: 0.5 Hz at 256 Hz
+		if !InBand([2]float64{0.5, 4}, f) {
+			t.Errorf("%.17g Hz: bin at %.17g Hz left out of 0.5-4 Hz", fs, f)
+		}
+	}
+	if InBand([2]float64{0.5, 4}, 0.4999) || InBand([2]float64{0.5, 4}, 4.001) {
+		t.Error("frequencies outside the band by more than rounding taken in")
 	}
 }

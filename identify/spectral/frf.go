@@ -230,12 +230,34 @@ func newFRFSet(s *Spectra, inputs, outputs []int) *FRFSet {
 	return set
 }
 
+// bandContains is InBand, with the zero band standing for every frequency
+// above 0.
 func bandContains(bandHz [2]float64, fHz float64) bool {
 	if bandHz == [2]float64{} {
 		return fHz > 0
 	}
-	return fHz >= bandHz[0] && fHz <= bandHz[1]
+	return InBand(bandHz, fHz)
 }
+
+// InBand reports whether fHz lies in the band [lo, hi], edges included with
+// a relative slack of RateSlack: a bin that falls on an edge for a round
+// rate (bin 24 of 1024 at 21.33 Hz is 0.5 Hz) stays in the band when the
+// rate comes out a rounding lower or higher (255.99999999999778 Hz fitted to
+// the time stamps of a 256 Hz log).
+func InBand(bandHz [2]float64, fHz float64) bool {
+	return fHz >= bandHz[0]*(1-RateSlack) && fHz <= bandHz[1]*(1+RateSlack)
+}
+
+// RateSlack is the relative error of a sample rate that the choices made
+// from it (InBand) treat as rounding, 1e-6, so that rounding never changes
+// them. It covers the rates that reach them: float64
+// arithmetic on decimal time stamps (1e-15), a rate written to seven
+// significant digits (5e-8 for 199.99999 Hz), a rate fitted to time stamps
+// rounded to 4 or 5 decimals (1e-8 or less for a few minutes of log, at worst
+// 1.5 u/(N dt) for N stamps of step dt rounded to u). Against that, 1e-6 of
+// a frequency is nothing an analysis can see: 0.5 µHz at the default band's
+// 0.5 Hz edge.
+const RateSlack = 1e-6
 
 func (set *FRFSet) fillNaN(f int) {
 	nan := math.NaN()

@@ -75,6 +75,17 @@ func (b *Bank) Write(block [][]float64) {
 	}
 }
 
+// SetRate replaces the sample rate of every candidate (see
+// Accumulator.SetRate).
+func (b *Bank) SetRate(fsHz float64) error {
+	for _, a := range b.accs {
+		if err := a.SetRate(fsHz); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
 // ChoiceOptions tune Bank.Choose. The zero value selects the defaults.
 type ChoiceOptions struct {
 	BandHz         [2]float64 // band holding the body modes; required
@@ -282,7 +293,7 @@ func quickDamping(s *Spectra, inputs, outputs []int, opt ChoiceOptions) (fnHz, z
 func halfPower(freqsHz, mag []float64, bandHz [2]float64) (fnHz, zeta float64, ok bool) {
 	peak := -1
 	for f, fHz := range freqsHz {
-		if fHz >= bandHz[0] && fHz <= bandHz[1] && (peak < 0 || mag[f] > mag[peak]) {
+		if InBand(bandHz, fHz) && (peak < 0 || mag[f] > mag[peak]) {
 			peak = f
 		}
 	}

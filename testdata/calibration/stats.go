@@ -18,7 +18,6 @@ const coverSDs = 2
 type stat struct {
 	fig              figure
 	errs, zs         []float64
-	noSD             int
 	flagged, missing int
 	worstErr         float64 // the largest |error|, in the figure's error unit
 	worstZ           float64 // the largest |z|
@@ -40,8 +39,7 @@ func (s *stat) add(e estimate, label string) {
 	if math.Abs(err) > s.worstErr || len(s.errs) == 1 {
 		s.worstErr, s.worstErrCase = math.Abs(err), label
 	}
-	if !(e.sd > 0) {
-		s.noSD++
+	if !(e.sd > 0) { // no stated sd (an undetermined node): in n, not in z
 		return
 	}
 	z := e.z()

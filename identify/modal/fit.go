@@ -177,13 +177,13 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	if len(clusters) < 2 {
 		// Heavily damped, close modes: the damping of one pole may wander by
 		// more than StabilityDampingTol from order to order while its
-		// frequency holds. Its frequency-stable poles start the refinement,
-		// which settles the damping.
+		// frequency and shape hold. Its frequency-stable poles start the
+		// refinement, which settles the damping.
 		if fc := stableClusters(pts, PoleFrequencyStable); len(fc) >= 2 {
 			clusters = fc
 			res.Warnings = append(res.Warnings, Warning{WarnFrequencyStableOnly, fmt.Sprintf(
 				"fewer than two poles in %.3g-%.3g Hz were stable in damping across model orders; the refinement "+
-					"started from poles stable in frequency only (%d and %d orders)", lo, hi,
+					"started from poles stable in frequency and shape only (%d and %d orders)", lo, hi,
 				len(fc[0].members), len(fc[1].members))})
 		}
 	}

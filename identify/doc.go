@@ -3,7 +3,9 @@
 //
 //   - spectral: streaming Welch spectra, FRFs (H1, two-input H1),
 //     coherence and their random-error bands, decimation and the choice of
-//     resolution (its doc comment fixes the scaling and FRF conventions);
+//     resolution, which for the modal fit weighs the resolution bias against
+//     the random error of the record at hand (its doc comment fixes the
+//     scaling and FRF conventions);
 //   - modal: the mode indicator, the multi-mode pole-residue fit of the FRFs
 //     with common poles, mode shapes and uncertainties (rig tests);
 //   - decay: release detection and the multi-output free-decay fit (drop

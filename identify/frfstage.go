@@ -49,17 +49,29 @@ func WindowNamed(name string) (spectral.Window, error) {
 	return 0, fmt.Errorf("unknown window %q; use one of %s", name, strings.Join(ingest.Windows, ", "))
 }
 
-// DefaultFitResolutionBias is the expected resolution bias allowed when the
+// DefaultFitResolutionBias caps the expected resolution bias when the
 // segment length is chosen for the modal fit: (1/3)(Be/Br)^2 <= 0.003, a
-// window bandwidth Be near a tenth of the half-power bandwidth Br. It is
+// window bandwidth Be at most a tenth of the half-power bandwidth Br. It is
 // stricter than the spectral package's default, which bounds the bias of a
 // peak's magnitude only, because leakage also biases the fitted damping.
-// Measured on simulated rig logs (TestRigRouteAccuracy, 100 seeded cars,
-// -rig.cases 100): with bounds 0.004, 0.003 and 0.002, 4, 1 and 0 of the
-// 200 natural frequencies missed 0.5 %, 93.0 %, 95.0 % and 95.3 % of the
-// errors lay within two reported standard deviations, and the mean damping
-// error was +0.0012, +0.0008 and +0.0006; finer still leaves too few averages
-// on 5-minute logs (one 0.503 % miss in the 20-case default set at 0.002).
+// Within the cap the choice weighs bias against random error for the record
+// at hand (fitDampingErrorScale), which on long records takes segments far
+// finer than the cap asks; the fit then states the bias that remains in its
+// standard deviations (modal.Result.ResolutionBias).
+//
+// Measured with the cap alone (the shortest candidate within it): over
+// 100 seeded cars of TestRigRouteAccuracy (-rig.cases 100) bounds 0.004,
+// 0.003 and 0.002 gave 4, 1 and 0 natural frequencies of 200 missing
+// 0.5 %, and the mean damping error was +0.0012, +0.0008 and +0.0006. With
+// the bias-variance choice and the stated bias: no miss, worst 0.44 %, 97.2 %
+// of the errors within two reported standard deviations. On the resolution
+// sweep (identify/sweep_test.go, 40 five-minute and 24 hour-long logs, 5 %
+// noise), the cap alone chose N = 512-1024 (at 20 Hz after decimation) on
+// both lengths; the damping came out +0.0011 (5 min) and +0.0010 (1 h) high,
+// and on hour-long logs with RMS z = error/sd of 3.2 and errors up to 8 sd.
+// Now: N = 1024 on 5-minute logs (damping +0.0006, RMS z 1.01, 96 % within
+// 2 sd) and 2048-8192 on hour-long ones (damping +0.0001, RMS z 1.10, 92 %
+// within 2 sd, worst 3.0 sd; natural frequency RMS z 0.95 and 1.03).
 const DefaultFitResolutionBias = 0.003
 
 // fitMinAverages is the least effective number of averages the resolution
@@ -71,6 +83,17 @@ const DefaultFitResolutionBias = 0.003
 // 12 and 8 averages, 86.7 %, 91.7 % and 95.0 % of the errors lay within two
 // reported standard deviations, and the damping bias fell.
 const fitMinAverages = 8
+
+// fitDampingErrorScale is c in the nominal relative random error of a
+// fitted damping ratio, c/sqrt(Br T) (Br the half-power bandwidth, T the
+// record length), with which the resolution choice weighs bias against
+// variance (spectral.ChoiceOptions.DampingErrorScale). Measured on seeded
+// simulated rig logs with 5 % noise (40 of 5 minutes, 24 of an hour): the
+// delta-method sd of zeta/zeta times sqrt(Br T) had means 0.02-0.10 over the
+// candidates with at least fitMinAverages averages, 0.06 for heavily damped
+// modes; quieter logs have smaller random errors, for which this errs on the
+// coarse side, and the fit states the remaining resolution bias in its sd.
+const fitDampingErrorScale = 0.05
 
 func (o *FRFOptions) defaults() error {
 	if o.BandLowHz == 0 {
@@ -352,7 +375,8 @@ func (s *FRFStage) Result(sampleRateHz float64) (*FRFResult, error) {
 			s.q, s.fsHz, s.fsHz/float64(s.q), s.opt.BandHighHz))
 	}
 	if s.bank != nil {
-		r.Choice, r.Spectra, err = s.bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band, MaxBias: s.opt.MaxResolutionBias, MinAverages: fitMinAverages})
+		r.Choice, r.Spectra, err = s.bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band, MaxBias: s.opt.MaxResolutionBias,
+			MinAverages: fitMinAverages, DampingErrorScale: fitDampingErrorScale})
 		if err != nil {
 			return nil, err
 		}

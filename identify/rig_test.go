@@ -259,3 +259,42 @@ func TestRigRouteAccuracy(t *testing.T) {
 		t.Errorf("only %.1f %% of errors within 2 sd, want at least %.0f %%", 100*cov, 100*minCoverage2Sig)
 	}
 }
+
+// TestRigHourLongWithinStatedSD: on hour-long rig logs, where the random
+// errors are small and any bias shows, every natural frequency and damping
+// ratio lies within hourLongMaxSigmas of its stated standard deviation
+// (the acceptance for long logs). Seeded invented cars from light
+// to heavy damping, through the CSV reader at a low rate to stay fast.
+func TestRigHourLongWithinStatedSD(t *testing.T) {
+	const (
+		hourLongCases     = 6
+		hourLongMaxSigmas = 3
+	)
+	if testing.Short() {
+		t.Skip("hour-long logs")
+	}
+	rng := rand.New(rand.NewPCG(2026, 3600))
+	for i := 0; i < hourLongCases; i++ {
+		zLo := 0.05 + 0.34*float64(i)/hourLongCases
+		c := drawRigCase(rng, zLo, zLo+0.34/hourLongCases)
+		c.sensors = c.sensors[:2]
+		c.opt.DurationS, c.opt.RateHz = 3600, 50
+		fit := runRig(t, c)
+		for k, m := range fit.Modes {
+			tr := c.truth[k]
+			for _, q := range []struct {
+				name          string
+				got, want, sd float64
+			}{
+				{"fn", m.NaturalFrequencyHz, tr.NaturalFrequencyHz, m.SD.NaturalFrequencyHz},
+				{"zeta", m.DampingRatio, tr.DampingRatio, m.SD.DampingRatio},
+			} {
+				z := (q.got - q.want) / q.sd
+				t.Logf("case %d %s %s: %.5f vs %.5f, %+.2f sd", i, m.Label, q.name, q.got, q.want, z)
+				if !(math.Abs(z) <= hourLongMaxSigmas) {
+					t.Errorf("case %d %s (zeta %.3f) %s: %.5f ± %.2g, truth %.5f (%+.1f sd)", i, m.Label, tr.DampingRatio, q.name, q.got, q.sd, q.want, z)
+				}
+			}
+		}
+	}
+}

@@ -33,7 +33,9 @@ type Mode struct {
 }
 
 // SD holds one standard deviation of each of a Mode's values, in the same
-// units, by the delta method from the covariance of the fitted parameters.
+// units, by the delta method from the covariance of the fitted parameters
+// (the rig route adds the expected resolution bias in quadrature, see
+// package identify/modal).
 type SD struct {
 	NaturalFrequencyHz    float64
 	DampedFrequencyHz     float64

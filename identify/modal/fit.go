@@ -84,6 +84,11 @@ type Result struct {
 	UpperResidual, LowerResidual [][]float64
 	Quick                        []QuickMode
 	Warnings                     []Warning
+	// ResolutionBias is, per mode (Modes order), the expected bias of the
+	// estimate that the spectral window's smoothing of the FRFs causes
+	// (resolutionBias); zero when the set carries no Kernel. Its size is in
+	// each of the mode's standard deviations.
+	ResolutionBias []ModeBias
 
 	model  poleResidue // the refined model, for ModelFRF
 	theta  []float64
@@ -109,8 +114,9 @@ func (r *Result) ModelFRF(out, in int, freqHz float64) complex128 {
 //  2. the LSCF estimator (see lscfPoles) swept over orders 2..MaxOrder, with
 //     each pole classified against the previous order (stabilisation);
 //     physical poles (stable, damping ratio in (0, 1), inside the band) that
-//     are stable at two or more orders are grouped by frequency and the two
-//     groups stable at the most orders are the body modes;
+//     are stable in frequency, damping and shape (MAC of the LSCF shapes,
+//     StabilityMAC) at two or more orders are grouped by frequency and the
+//     two groups stable at the most orders are the body modes;
 //  3. residues and residual terms by weighted linear least squares at those
 //     poles, then a Levenberg-Marquardt refinement of poles, residues and
 //     residual terms together, each bin weighted by 1/SigmaAbs: this removes
@@ -118,7 +124,8 @@ func (r *Result) ModelFRF(out, in int, freqHz float64) complex128 {
 //  4. shapes from the dominant left singular vector of each mode's residue
 //     matrix, heave and pitch by kinematics, labels, MAC, fit quality, and
 //     standard deviations from the covariance (package documentation) by the
-//     delta method with central differences (gonum's diff/fd).
+//     delta method with central differences (gonum's diff/fd), with the
+//     resolution bias of the set's window (resolutionBias) in quadrature.
 //
 // Data problems return errors: *BinCountError (too few usable bins),
 // *ModeCountError (fewer than two modes), and others with a hint. Sensor
@@ -170,13 +177,13 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	if len(clusters) < 2 {
 		// Heavily damped, close modes: the damping of one pole may wander by
 		// more than StabilityDampingTol from order to order while its
-		// frequency holds. Its frequency-stable poles start the refinement,
-		// which settles the damping.
+		// frequency and shape hold. Its frequency-stable poles start the
+		// refinement, which settles the damping.
 		if fc := stableClusters(pts, PoleFrequencyStable); len(fc) >= 2 {
 			clusters = fc
 			res.Warnings = append(res.Warnings, Warning{WarnFrequencyStableOnly, fmt.Sprintf(
 				"fewer than two poles in %.3g-%.3g Hz were stable in damping across model orders; the refinement "+
-					"started from poles stable in frequency only (%d and %d orders)", lo, hi,
+					"started from poles stable in frequency and shape only (%d and %d orders)", lo, hi,
 				len(fc[0].members), len(fc[1].members))})
 		}
 	}
@@ -226,7 +233,11 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 		return nil, err
 	}
 	res.ChiSquarePerDOF = chi2
-	res.Modes = pr.modesWithSD(theta, cov)
+	var bias [][]float64
+	if set.Kernel != nil {
+		bias = pr.resolutionBias(theta, set.Kernel)
+	}
+	res.Modes, res.ResolutionBias = pr.modesWithSD(theta, cov, bias)
 	res.MAC = body.MAC(res.Modes[0].Shape, res.Modes[1].Shape)
 	res.UpperResidual, res.LowerResidual = pr.residualTerms(theta)
 	res.NormalisedResidual = pr.normalisedResidual(theta)
@@ -324,10 +335,77 @@ func (pr poleResidue) shape(theta []float64, r int) ([]complex128, float64) {
 	return u, ratio
 }
 
+// ModeBias is the expected resolution bias of a mode's natural frequency
+// [Hz] and damping ratio, signed (estimate minus truth).
+type ModeBias struct {
+	NaturalFrequencyHz, DampingRatio float64
+}
+
+// resolutionBias returns, per mode r, the change of every modeQuantities
+// value when the fit is repeated on the fitted model seen through the
+// spectral window (kernel): the expected bias of a Welch estimate's
+// smoothing, evaluated at theta. A Welch H1 is, in expectation, the true FRF
+// smoothed by the window's kernel (WindowKernel); fitting the smoothed
+// model with the same weights shows how far that smoothing moves the poles
+// and shapes. It grows with the ratio of the window's bandwidth to the
+// modes' half-power bandwidth, about as its square.
+func (pr poleResidue) resolutionBias(theta []float64, kernel []KernelTap) [][]float64 {
+	f := pr.b.set.FreqHz
+	stepRad := 2 * math.Pi * (f[len(f)-1] - f[0]) / float64(len(f)-1)
+	smooth := *pr.b
+	smooth.h = make([][]complex128, smooth.pairs)
+	for p := range smooth.h {
+		smooth.h[p] = make([]complex128, len(smooth.omega))
+	}
+	poles := pr.poles(theta)
+	bs := make([]complex128, pr.perPair())
+	for n, om := range smooth.omega {
+		wsum := 0.0
+		for _, t := range kernel {
+			o := om + t.OffsetBins*stepRad
+			if o <= 0 {
+				continue
+			}
+			wsum += t.Weight
+			pr.basis(bs, poles, o)
+			for p := range smooth.pairs {
+				var v complex128
+				for j, c := range pr.pairParams(theta, p) {
+					v += complex(c, 0) * bs[j]
+				}
+				smooth.h[p][n] += complex(t.Weight, 0) * v
+			}
+		}
+		for p := range smooth.pairs {
+			smooth.h[p][n] /= complex(wsum, 0)
+		}
+	}
+	spr := pr
+	spr.b = &smooth
+	ts := append([]float64(nil), theta...)
+	// Running out of iterations leaves the best point found, near enough
+	// for an error budget.
+	lsq.Minimize(spr.residualsAndJacobian, spr.rows(), ts, lsq.Settings{})
+	kin := body.NewKinematics(pr.b.set.OutputPosM)
+	out := make([][]float64, pr.modes)
+	for r := range out {
+		q0, q1 := pr.modeQuantities(theta, r, kin), pr.modeQuantities(ts, r, kin)
+		for i := range q1 {
+			q1[i] -= q0[i]
+		}
+		out[r] = q1
+	}
+	return out
+}
+
 // modesWithSD builds both modes with standard deviations by the delta
 // method, sorted by natural frequency and labelled (body.SortAndLabel).
-func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []body.Mode {
+// When bias is not nil (resolutionBias), each standard deviation also holds
+// the mode's resolution bias in quadrature, sqrt(sd^2 + bias^2), and the
+// biases are returned in the modes' order.
+func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense, bias [][]float64) ([]body.Mode, []ModeBias) {
 	ms := make([]body.Mode, pr.modes)
+	mb := make([]ModeBias, pr.modes)
 	nsens := len(pr.b.set.OutputPosM)
 	kin := body.NewKinematics(pr.b.set.OutputPosM)
 	for r := range ms {
@@ -339,7 +417,16 @@ func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []body.Mod
 		var gc, v mat.Dense
 		gc.Mul(G, cov)
 		v.Mul(&gc, G.T())
-		sd := func(i int) float64 { return math.Sqrt(math.Max(v.At(i, i), 0)) }
+		sd := func(i int) float64 {
+			b := 0.0
+			if bias != nil {
+				b = bias[r][i]
+			}
+			return math.Sqrt(math.Max(v.At(i, i), 0) + b*b)
+		}
+		if bias != nil {
+			mb[r] = ModeBias{NaturalFrequencyHz: bias[r][0], DampingRatio: bias[r][2]}
+		}
 		psi, rank := pr.shape(theta, r)
 		z, th := kin.HeavePitch(psi)
 		m := body.Mode{
@@ -355,8 +442,12 @@ func (pr poleResidue) modesWithSD(theta []float64, cov *mat.SymDense) []body.Mod
 		}
 		ms[r] = m
 	}
+	first := ms[0].Pole
 	body.SortAndLabel(ms)
-	return ms
+	if ms[0].Pole != first {
+		mb[0], mb[1] = mb[1], mb[0]
+	}
+	return ms, mb
 }
 
 func (pr poleResidue) residualTerms(theta []float64) (upper, lower [][]float64) {

@@ -8,6 +8,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"github.com/ridemodes/ridemodes/identify/body"
 	"github.com/ridemodes/ridemodes/identify/spectral"
 )
 
@@ -72,17 +73,23 @@ func newBand(set *FRFSet, loHz, hiHz float64) (*band, int) {
 //
 // References: Richardson & Formenti, IMAC 1982; Guillaume et al., IMAC 2003
 // (see the package documentation).
-func lscfPoles(b *band, order int) ([]complex128, error) {
+//
+// Each pole's shape is the dominant left singular vector of its residue
+// matrix (outputs x inputs) B_p(x_r)/A'(x_r), the numerators being
+// recovered from the reduced equations, b_p = -R_p^-1 S_p a; the
+// stabilisation check compares these shapes between orders by the MAC.
+func lscfPoles(b *band, order int) ([]complex128, [][]complex128, error) {
 	ws := 2 * math.Pi * b.hiHz
 	extra := make([]float64, len(b.omega)) // Sanathanan-Koerner weights 1/|A_prev|^2
 	for n := range extra {
 		extra[n] = 1
 	}
 	var a *mat.VecDense
+	var rs []*mat.Dense
 	for it := 0; it <= skIterations; it++ {
 		var err error
-		if a, err = denominator(b, order, extra); err != nil {
-			return nil, err
+		if a, rs, err = denominator(b, order, extra); err != nil {
+			return nil, nil, err
 		}
 		mean := 0.0
 		for n, om := range b.omega {
@@ -100,13 +107,61 @@ func lscfPoles(b *band, order int) ([]complex128, error) {
 			extra[n] /= mean
 		}
 	}
-	return roots(a, order, ws)
+	poles, err := roots(a, order, ws)
+	if err != nil {
+		return nil, nil, err
+	}
+	return poles, poleShapes(b, a, rs, poles, ws), nil
+}
+
+// poleShapes returns the shape of each pole (rad/s) of the monic
+// denominator a: the dominant left singular vector of the residue matrix
+// B_p(x)/A'(x) at x = pole/ws, with the numerator coefficients
+// b_p = -rs[p] [a; 1].
+func poleShapes(b *band, a *mat.VecDense, rs []*mat.Dense, poles []complex128, ws float64) [][]complex128 {
+	order := a.Len()
+	full := mat.NewVecDense(order+1, nil)
+	for j := range order {
+		full.SetVec(j, a.AtVec(j))
+	}
+	full.SetVec(order, 1)
+	num := make([]*mat.VecDense, b.pairs)
+	for p := range num {
+		num[p] = mat.NewVecDense(order+1, nil)
+		num[p].MulVec(rs[p], full)
+		num[p].ScaleVec(-1, num[p])
+	}
+	no, ni := b.set.outputs(), b.set.inputs()
+	shapes := make([][]complex128, len(poles))
+	for r, lam := range poles {
+		x := lam / complex(ws, 0)
+		// A'(x) = sum_j j a_j x^(j-1).
+		var da complex128
+		for j := order; j >= 1; j-- {
+			da = da*x + complex(float64(j)*full.AtVec(j), 0)
+		}
+		res := make([][]complex128, no)
+		for o := range no {
+			res[o] = make([]complex128, ni)
+			for i := range ni {
+				var bv complex128
+				c := num[o*ni+i]
+				for j := order; j >= 0; j-- {
+					bv = bv*x + complex(c.AtVec(j), 0)
+				}
+				res[o][i] = bv / da
+			}
+		}
+		_, shapes[r] = complexSVD(res, nil, true)
+	}
+	return shapes
 }
 
 // denominator solves the reduced normal equations of lscfPoles for the
 // monic denominator's lower coefficients a_0..a_{order-1}, each bin's
-// weight multiplied by extra[n].
-func denominator(b *band, order int, extra []float64) (*mat.VecDense, error) {
+// weight multiplied by extra[n]. It also returns, per FRF p, R_p^-1 S_p,
+// from which the numerator coefficients follow.
+func denominator(b *band, order int, extra []float64) (*mat.VecDense, []*mat.Dense, error) {
 	n1 := order + 1
 	ws := 2 * math.Pi * b.hiHz
 	M := mat.NewSymDense(n1, nil)
@@ -114,7 +169,8 @@ func denominator(b *band, order int, extra []float64) (*mat.VecDense, error) {
 	S := mat.NewDense(n1, n1, nil)
 	T := mat.NewSymDense(n1, nil)
 	var chol mat.Cholesky
-	var tmp, prod mat.Dense
+	var prod mat.Dense
+	rs := make([]*mat.Dense, b.pairs)
 	pow := make([]complex128, n1)
 	for p := range b.pairs {
 		R.Zero()
@@ -143,12 +199,14 @@ func denominator(b *band, order int, extra []float64) (*mat.VecDense, error) {
 			}
 		}
 		if !chol.Factorize(R) {
-			return nil, fmt.Errorf("modal: fraction polynomial order %d: the numerator normal equations are singular (too few bins or too high an order)", order)
+			return nil, nil, fmt.Errorf("modal: fraction polynomial order %d: the numerator normal equations are singular (too few bins or too high an order)", order)
 		}
-		if err := chol.SolveTo(&tmp, S); err != nil {
-			return nil, fmt.Errorf("modal: fraction polynomial order %d: %w", order, err)
+		tmp := mat.NewDense(n1, n1, nil)
+		if err := chol.SolveTo(tmp, S); err != nil {
+			return nil, nil, fmt.Errorf("modal: fraction polynomial order %d: %w", order, err)
 		}
-		prod.Mul(S.T(), &tmp)
+		rs[p] = tmp
+		prod.Mul(S.T(), tmp)
 		for j := range n1 {
 			for l := j; l < n1; l++ {
 				M.SetSym(j, l, M.At(j, l)+T.At(j, l)-prod.At(j, l))
@@ -166,9 +224,9 @@ func denominator(b *band, order int, extra []float64) (*mat.VecDense, error) {
 	}
 	var a mat.VecDense
 	if err := a.SolveVec(A, rhs); err != nil {
-		return nil, fmt.Errorf("modal: fraction polynomial order %d: the denominator equations are singular: %w", order, err)
+		return nil, nil, fmt.Errorf("modal: fraction polynomial order %d: the denominator equations are singular: %w", order, err)
 	}
-	return &a, nil
+	return &a, rs, nil
 }
 
 // roots returns the oscillating roots (Im > 0) of the monic polynomial with
@@ -215,15 +273,22 @@ type PoleStatus int
 
 // Pole statuses, from least to most settled.
 const (
-	// PoleNew: no pole of the previous order lies near it.
+	// PoleNew: no pole of the previous order lies near it in frequency
+	// with a shape of MAC StabilityMAC or more.
 	PoleNew PoleStatus = iota
 	// PoleFrequencyStable: a previous-order pole has its frequency within
-	// StabilityFrequencyTol but not its damping.
+	// StabilityFrequencyTol and its shape within StabilityMAC, but not its
+	// damping.
 	PoleFrequencyStable
-	// PoleStable: frequency within StabilityFrequencyTol and damping ratio
-	// within StabilityDampingTol of a previous-order pole.
+	// PoleStable: frequency within StabilityFrequencyTol, damping ratio
+	// within StabilityDampingTol and shape within StabilityMAC of a
+	// previous-order pole.
 	PoleStable
 )
+
+// A pole whose frequency (and damping) agree with a previous-order pole but
+// whose shape does not is PoleNew: a noise pole can hold its frequency
+// across orders while its shape wanders.
 
 func (s PoleStatus) String() string {
 	switch s {
@@ -236,10 +301,12 @@ func (s PoleStatus) String() string {
 }
 
 // Stabilisation tolerances between consecutive model orders (the usual
-// choice in the trade [memory]: frequency 1 %, damping 5 %).
+// choice in the trade [memory]: frequency 1 %, damping 5 %, MAC of the
+// shapes at least 0.98).
 const (
 	StabilityFrequencyTol = 0.01
 	StabilityDampingTol   = 0.05
+	StabilityMAC          = 0.98
 )
 
 // StabilisationPoint is one pole of one model order, the data of a
@@ -253,6 +320,11 @@ type StabilisationPoint struct {
 	// (0, 1) and natural frequency inside the band.
 	Physical bool
 	Status   PoleStatus
+	// Shape is the pole's shape at the sensors (lscfPoles), unscaled; MAC is
+	// the largest MAC of Shape with a previous-order pole within
+	// StabilityFrequencyTol (0: none).
+	Shape []complex128
+	MAC   float64
 }
 
 // stabilise sweeps the LSCF orders 2..maxOrder and classifies the poles.
@@ -264,7 +336,7 @@ type StabilisationPoint struct {
 func stabilise(b *band, maxOrder int) (pts []StabilisationPoint, reached int, err error) {
 	var prev []StabilisationPoint
 	for order := 2; order <= maxOrder; order++ {
-		poles, err := lscfPoles(b, order)
+		poles, shapes, err := lscfPoles(b, order)
 		if err != nil {
 			if order > minSweepOrder {
 				return pts, order - 1, nil
@@ -272,29 +344,41 @@ func stabilise(b *band, maxOrder int) (pts []StabilisationPoint, reached int, er
 			return nil, 0, err
 		}
 		var cur []StabilisationPoint
-		for _, lam := range poles {
-			p := StabilisationPoint{Order: order, Pole: lam}
+		for r, lam := range poles {
+			p := StabilisationPoint{Order: order, Pole: lam, Shape: shapes[r]}
 			w := cmplx.Abs(lam)
 			p.NaturalFrequencyHz = w / (2 * math.Pi)
 			p.DampingRatio = -real(lam) / w
 			p.Physical = p.DampingRatio > 0 && p.DampingRatio < 1 &&
 				p.NaturalFrequencyHz >= b.loHz && p.NaturalFrequencyHz <= b.hiHz
-			for _, q := range prev {
-				if math.Abs(p.NaturalFrequencyHz-q.NaturalFrequencyHz) > StabilityFrequencyTol*q.NaturalFrequencyHz {
-					continue
-				}
-				st := PoleFrequencyStable
-				if math.Abs(p.DampingRatio-q.DampingRatio) <= StabilityDampingTol*math.Abs(q.DampingRatio) {
-					st = PoleStable
-				}
-				p.Status = max(p.Status, st)
-			}
+			p.classify(prev)
 			cur = append(cur, p)
 		}
 		pts = append(pts, cur...)
 		prev = cur
 	}
 	return pts, maxOrder, nil
+}
+
+// classify sets p's Status and MAC against the poles of the previous
+// order: the best agreement with any of them in frequency, shape (MAC) and
+// damping, by the tolerances above.
+func (p *StabilisationPoint) classify(prev []StabilisationPoint) {
+	for _, q := range prev {
+		if math.Abs(p.NaturalFrequencyHz-q.NaturalFrequencyHz) > StabilityFrequencyTol*q.NaturalFrequencyHz {
+			continue
+		}
+		mac := body.MAC(p.Shape, q.Shape)
+		p.MAC = math.Max(p.MAC, mac)
+		if !(mac >= StabilityMAC) {
+			continue
+		}
+		st := PoleFrequencyStable
+		if math.Abs(p.DampingRatio-q.DampingRatio) <= StabilityDampingTol*math.Abs(q.DampingRatio) {
+			st = PoleStable
+		}
+		p.Status = max(p.Status, st)
+	}
 }
 
 // minSweepOrder is the lowest order a sweep must reach for its

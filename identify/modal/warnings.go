@@ -40,7 +40,7 @@ const (
 	// WarnSkippedBins: bins in the band with unusable data were left out.
 	WarnSkippedBins WarningCode = "skipped-bins"
 	// WarnFrequencyStableOnly: a body pole was stable across model orders in
-	// frequency but not in damping; the refinement started from it.
+	// frequency and shape but not in damping; the refinement started from it.
 	WarnFrequencyStableOnly WarningCode = "frequency-stable-only"
 )
 

@@ -147,3 +147,48 @@ func TestChooseOnRig(t *testing.T) {
 	}
 	t.Log(c.Reasons, c.Warnings)
 }
+
+// TestChooseTradesBiasForRecord: with the fit's bias-variance rule
+// (DampingErrorScale) a longer record buys a longer segment, and a lighter
+// damping needs one; every choice keeps the least averages. Output-only
+// records of one mode (synthetic, known damping), 5 minutes and an hour at
+// 20 Hz.
+func TestChooseTradesBiasForRecord(t *testing.T) {
+	const (
+		fsHz        = 20.0
+		minAverages = 8
+		errorScale  = 0.05
+	)
+	chosen := map[[2]float64]int{}
+	for _, recordS := range []float64{300, 3600} {
+		for _, zeta := range []float64{0.08, 0.3} {
+			ch := synthMode(fsHz, int(recordS*fsHz), 1.3, zeta, 31)
+			bank, err := NewBank(BankConfig{FsHz: fsHz}, []string{"body"})
+			if err != nil {
+				t.Fatal(err)
+			}
+			writeBlocks(bank, ch, 1500)
+			c, _, err := bank.Choose(nil, []int{0}, ChoiceOptions{BandHz: [2]float64{0.3, 5},
+				MinAverages: minAverages, MaxBias: 0.003, DampingErrorScale: errorScale})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if c.EffectiveAverages < minAverages || c.RecordS != recordS {
+				t.Errorf("%g s, zeta %g: %.1f averages, record %g s", recordS, zeta, c.EffectiveAverages, c.RecordS)
+			}
+			chosen[[2]float64{recordS, zeta}] = c.SegmentLen
+			t.Logf("%g s, zeta %g: N=%d; %v", recordS, zeta, c.SegmentLen, c.Reasons[len(c.Reasons)-1])
+		}
+	}
+	for _, zeta := range []float64{0.08, 0.3} {
+		if short, long := chosen[[2]float64{300, zeta}], chosen[[2]float64{3600, zeta}]; long <= short {
+			t.Errorf("zeta %g: N=%d for an hour, N=%d for 5 minutes; want longer for the longer record", zeta, long, short)
+		}
+	}
+	for _, recordS := range []float64{300, 3600} {
+		light, heavy := chosen[[2]float64{recordS, 0.08}], chosen[[2]float64{recordS, 0.3}]
+		if light < heavy || (recordS == 3600 && light == heavy) {
+			t.Errorf("%g s: N=%d at zeta 0.08, N=%d at zeta 0.3; want longer for the lighter damping", recordS, light, heavy)
+		}
+	}
+}

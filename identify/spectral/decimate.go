@@ -83,9 +83,14 @@ func NewDecimator(factor, nch int, fsHz float64, next BlockWriter) (*Decimator, 
 func (d *Decimator) Taps() []float64 { return d.taps }
 
 // DecimationFactor returns the largest factor q that keeps maxFreqHz inside
-// the decimator's passband PassbandFraction fs/(2q), at least 1.
+// the decimator's passband PassbandFraction fs/(2q), at least 1, allowing
+// for a rate rounded low by up to RateSlack: 199.99999999999983 Hz (a rate
+// from rounded time steps) and 199.99999 Hz pick the factor of 200 Hz. The
+// q so granted puts maxFreqHz at most RateSlack (relative) past the passband
+// edge, where the Kaiser filter still has its passband response (the
+// transition band is 0.4 of the output Nyquist frequency wide).
 func DecimationFactor(fsHz, maxFreqHz float64) int {
-	q := int(math.Floor(PassbandFraction * fsHz / (2 * maxFreqHz)))
+	q := int(math.Floor(PassbandFraction * fsHz / (2 * maxFreqHz) * (1 + RateSlack)))
 	return max(q, 1)
 }
 

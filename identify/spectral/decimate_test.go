@@ -25,13 +25,7 @@ func TestAntiAliasFilterMeetsSpec(t *testing.T) {
 			t.Fatalf("q=%d: even length %d", q, len(taps))
 		}
 		nyqOut := 0.5 / float64(q)
-		resp := func(f float64) float64 { // f in cycles/sample
-			var s complex128
-			for n, h := range taps {
-				s += complex(h, 0) * cmplx.Exp(complex(0, -2*math.Pi*f*float64(n)))
-			}
-			return cmplx.Abs(s)
-		}
+		resp := func(f float64) float64 { return tapResponse(taps, f) }
 		worstPass, worstStop := 0.0, 0.0
 		for i := 0; i <= gridPoints; i++ {
 			f := PassbandFraction * nyqOut * float64(i) / gridPoints
@@ -112,6 +106,16 @@ func TestDecimationKeepsFRF(t *testing.T) {
 	}
 }
 
+// tapResponse is the magnitude of a filter's frequency response at f
+// cycles/sample (the DTFT sum of its taps).
+func tapResponse(taps []float64, f float64) float64 {
+	var s complex128
+	for n, h := range taps {
+		s += complex(h, 0) * cmplx.Exp(complex(0, -2*math.Pi*f*float64(n)))
+	}
+	return cmplx.Abs(s)
+}
+
 func TestDecimationFactor(t *testing.T) {
 	// 0.8 * 1000/(2 q) >= 5 Hz gives q <= 80 [derived from the definition].
 	if q := DecimationFactor(1000, 5); q != 80 {
@@ -119,5 +123,24 @@ func TestDecimationFactor(t *testing.T) {
 	}
 	if q := DecimationFactor(8, 5); q != 1 {
 		t.Errorf("DecimationFactor(8, 5) = %d, want 1", q)
+	}
+	// a rate rounded low picks the factor of the round rate (0.8*200/16 = 10
+	// exactly); a rate really lower does not
+	for _, c := range []struct {
+		fsHz float64
+		want int
+	}{{200, 10}, {199.99999999999983, 10}, {199.99999, 10}, {200 * (1 - 0.9e-6), 10}, {200 * (1 - 2e-6), 9}, {199.9, 9}} {
+		if q := DecimationFactor(c.fsHz, 8); q != c.want {
+			t.Errorf("DecimationFactor(%.17g, 8) = %d, want %d", c.fsHz, q, c.want)
+		}
+	}
+	// what the slack grants costs nothing: at RateSlack past the passband
+	// edge the filter still meets the passband ripple (1e-4 for 80 dB, the
+	// factor 3 of TestAntiAliasFilterMeetsSpec)
+	for _, q := range []int{5, 10, 25} {
+		edge := PassbandFraction * 0.5 / float64(q) // cycles/sample
+		if dev := math.Abs(tapResponse(antiAliasTaps(q), edge*(1+RateSlack)) - 1); dev > 3e-4 {
+			t.Errorf("q=%d: response %.2g off unity just past the passband edge", q, dev)
+		}
 	}
 }

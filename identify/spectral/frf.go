@@ -249,8 +249,8 @@ func InBand(bandHz [2]float64, fHz float64) bool {
 }
 
 // RateSlack is the relative error of a sample rate that the choices made
-// from it (InBand) treat as rounding, 1e-6, so that rounding never changes
-// them. It covers the rates that reach them: float64
+// from it (DecimationFactor, InBand) treat as rounding, 1e-6, so that
+// rounding never changes them. It covers the rates that reach them: float64
 // arithmetic on decimal time stamps (1e-15), a rate written to seven
 // significant digits (5e-8 for 199.99999 Hz), a rate fitted to time stamps
 // rounded to 4 or 5 decimals (1e-8 or less for a few minutes of log, at worst

@@ -32,9 +32,9 @@ const (
 	longLogS         = 600
 	honestSDs        = 3
 	freqTolHeavyRel  = 0.01
-	dampingTolAbs   = 0.015
-	nodeTolRel      = 0.05
-	minCoverage2Sig = 0.85 // share of errors within 2 sd (0.954 for exact Gaussian sds)
+	dampingTolAbs    = 0.015
+	nodeTolRel       = 0.05
+	minCoverage2Sig  = 0.85 // share of errors within 2 sd (0.954 for exact Gaussian sds)
 	// nodeRealShapeDeg: the node is a property of a real shape; it is checked
 	// where the true theta/z is within 30 degrees of real (as identify/modal's
 	// own accuracy test does), elsewhere 1/Re(theta/z) is ill-conditioned.

@@ -32,7 +32,7 @@ func MeasuredJSON(m body.Mode, posM []float64, method string) ModeJSON {
 	j := ModeJSON{Label: m.Label, NaturalFrequencyHz: m.NaturalFrequencyHz,
 		NaturalFrequencyRadPerS: 2 * math.Pi * m.NaturalFrequencyHz, DampedFrequencyHz: m.DampedFrequencyHz,
 		DampingRatio: m.DampingRatio, PitchPerBounceRadPerM: Finite(m.PitchPerBounceRadPerM), NodeM: Finite(m.NodeM),
-		Method: method,
+		Method: method, Flagged: m.Flagged, FlagReasons: m.FlagReasons,
 		Uncertainty: &Uncertainty{NaturalFrequencyHz: m.SD.NaturalFrequencyHz, DampingRatio: m.SD.DampingRatio,
 			PitchPerBounceRadPerM: Finite(m.SD.PitchPerBounceRadPerM), NodeM: Finite(m.SD.NodeM)}}
 	for i, w := range m.Shape {

@@ -13,8 +13,10 @@
 //
 // Both routes return the measured modes of package body (body.Mode), sorted,
 // labelled and given their node's uncertainty by one rule
-// (body.SortAndLabel); body also holds the kinematics from sensors to heave
-// and pitch, and MAC.
+// (body.SortAndLabel), and flagged where the data cannot support them by
+// the rules of body.FlagUnsupported and their own evidence (Identified
+// carries each reason into its warnings: FlagWarnings); body also holds the
+// kinematics from sensors to heave and pitch, and MAC.
 //
 // This package holds the glue that a command needs: an FRF stage that takes
 // the blocks of an ingest stream, combines the pans of one axle, decimates

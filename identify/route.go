@@ -81,7 +81,8 @@ type Identified struct {
 	Modes   []body.Mode // bounce and pitch, sorted by natural frequency
 	Method  string      // one sentence naming the route's estimator
 	Summary ingest.Summary
-	// Choices say what was chosen and why; Warnings what the user should know.
+	// Choices say what was chosen and why; Warnings what the user should
+	// know, the reasons of flagged modes among them (FlagWarnings).
 	Choices, Warnings []string
 	// FitResidual is the fit's normalised residual; ModeShapeMAC the MAC of
 	// the two modes' sensor shapes; CoherenceInBand (rig) the mean multiple
@@ -183,6 +184,7 @@ func identifyRig(ctx context.Context, r *ingest.Reader, setup *ingest.Setup, opt
 			id.Warnings = append(id.Warnings, w.Message)
 		}
 	}
+	id.Warnings = append(id.Warnings, FlagWarnings(id.Modes)...)
 	id.Method = fmt.Sprintf("rig: %s FRFs, common-pole rational fraction polynomial fit (order %d) refined by weighted least squares",
 		frf.FRF.Method, fit.Order)
 	return id, nil
@@ -224,9 +226,27 @@ func identifyDrop(ctx context.Context, r *ingest.Reader, setup *ingest.Setup, op
 	for _, w := range fit.Warnings {
 		id.Warnings = append(id.Warnings, w.Message)
 	}
+	id.Warnings = append(id.Warnings, FlagWarnings(id.Modes)...)
 	id.Method = fmt.Sprintf("drop: free decay from %.2f s to %.2f s, eigensystem realization (order %d) refined by least squares",
 		fit.WindowStartS, fit.WindowEndS, fit.Order)
 	return id, nil
+}
+
+// FlagWarnings returns the reasons why modes of ms are flagged (body.Mode
+// FlagReasons), each once in the order of the modes, as warnings for the
+// summary: "flagged: " and the reason.
+func FlagWarnings(ms []body.Mode) []string {
+	var ws []string
+	seen := map[string]bool{}
+	for _, m := range ms {
+		for _, r := range m.FlagReasons {
+			if !seen[r] {
+				seen[r] = true
+				ws = append(ws, "flagged: "+r)
+			}
+		}
+	}
+	return ws
 }
 
 func allFinite(xs []float64) bool {

@@ -30,6 +30,12 @@ type Mode struct {
 	// measured input.
 	RankOneRatio float64
 	SD           SD
+	// Flagged is true when the data cannot support the mode's values: a
+	// value is reported, but neither its number nor its standard deviation
+	// should be trusted. FlagReasons say why, one sentence each, naming the
+	// evidence with its figures (see Flag and the package documentation).
+	Flagged     bool
+	FlagReasons []string
 }
 
 // SD holds one standard deviation of each of a Mode's values, in the same

@@ -103,12 +103,11 @@ const (
 	// WarnExtraModes: more than two stable pole groups in the band; the two
 	// stable at the most orders were kept.
 	WarnExtraModes WarningCode = "extra-modes"
-	// WarnPoorFit: the normalised residual is large for the noise seen at rest.
-	WarnPoorFit WarningCode = "poor-fit"
-	// WarnBandEdge: a fitted mode lies near an edge of the band.
-	WarnBandEdge WarningCode = "band-edge"
-	// WarnUncertain: a modal value's standard deviation is large.
-	WarnUncertain WarningCode = "uncertain"
+	// WarnNodeUndetermined: a mode's pitch per bounce is zero within
+	// body.NodeDeterminedSDs of its sd, so its node is undetermined. (A poor
+	// fit, a mode near the band edge and large standard deviations flag the
+	// mode instead: body.Mode.Flagged.)
+	WarnNodeUndetermined WarningCode = "node-undetermined"
 )
 
 // Warning is a condition the user should know about, returned as data.
@@ -148,8 +147,11 @@ type Result struct {
 	Curves        Curves
 	// LogDecrement is the one-mode quick estimate per channel.
 	LogDecrement []LogDecrement
-	Reasons      []string // why the event, window and order were chosen
-	Warnings     []Warning
+	// Support is the evidence on which the modes were flagged (see
+	// body.Mode.Flagged and the package documentation).
+	Support  Support
+	Reasons  []string // why the event, window and order were chosen
+	Warnings []Warning
 }
 
 // Fit finds the releases in a drop-test log of vertical body accelerations
@@ -234,7 +236,7 @@ func Fit(rateHz float64, channels [][]float64, posM []float64, opt Options) (*Re
 			"the event holds %d steps of the pans, at %s (the body's acceleration jumps at once by more than %g "+
 				"times the noise of the jump measure and %.2g of its largest jump in the event, as no free decay does): the car came off the "+
 				"blocks one axle after the other, and the decay is free only after the last step",
-			len(ev.Steps), strings.Join(at, ", "), opt.Detect.ThresholdK, stepShare))
+			len(ev.Steps), strings.Join(at, ", "), opt.Detect.StepThresholdK, stepShare))
 		after = "last step"
 	}
 	res.Reasons = append(res.Reasons, fmt.Sprintf(
@@ -298,7 +300,9 @@ func Fit(rateHz float64, channels [][]float64, posM []float64, opt Options) (*Re
 	for c := range channels {
 		res.LogDecrement[c] = logDecrement(c, dec.y[c], dtS, ev.NoiseSD[c]*dec.noiseGain, res.Modes)
 	}
-	res.Warnings = append(res.Warnings, qualityWarnings(res, opt, ev, dec)...)
+	res.Support = support(res, m, p, channels, ev, dec)
+	flagModes(res, posM, opt)
+	res.Warnings = append(res.Warnings, qualityWarnings(res)...)
 	return res, nil
 }
 
@@ -502,43 +506,13 @@ func fillCurves(res *Result, m expModel, p []float64, dec decimated, ev Event) {
 	res.NormalisedResidual = math.Sqrt(rss / sig)
 }
 
-// Quality thresholds for warnings.
-const (
-	// poorFitRatio: a residual sd this many times the filtered noise seen at
-	// rest means the two-mode model misses part of the signal.
-	poorFitRatio = 1.5
-	// bandEdgeFraction: a mode within this fraction of a band edge.
-	bandEdgeFraction = 0.05
-	// uncertainFraction: a standard deviation over this fraction of the
-	// natural frequency, or over this (absolute) in damping ratio.
-	uncertainFraction = 0.05
-)
-
-func qualityWarnings(res *Result, opt Options, ev Event, dec decimated) []Warning {
+func qualityWarnings(res *Result) []Warning {
 	var ws []Warning
-	for c, sd := range res.ResidualSD {
-		if noise := ev.NoiseSD[c] * dec.noiseGain; sd > poorFitRatio*noise {
-			ws = append(ws, Warning{WarnPoorFit, fmt.Sprintf(
-				"channel %d: residual sd %.3g is %.2g times the noise at rest; the two-mode decay misses part of "+
-					"the signal (a third mode, a non-linear damper, or a settling time too short)", c, sd, sd/noise)})
-		}
-	}
 	for _, md := range res.Modes {
-		f := md.NaturalFrequencyHz
-		if f < opt.BandLowHz*(1+bandEdgeFraction) || f > opt.BandHighHz*(1-bandEdgeFraction) {
-			ws = append(ws, Warning{WarnBandEdge, fmt.Sprintf(
-				"%s at %.3g Hz lies near the band edge (%.3g-%.3g Hz); widen the band to check it",
-				md.Label, f, opt.BandLowHz, opt.BandHighHz)})
-		}
 		if md.NodeUndetermined() {
-			ws = append(ws, Warning{WarnUncertain, fmt.Sprintf(
+			ws = append(ws, Warning{WarnNodeUndetermined, fmt.Sprintf(
 				"%s: pitch per bounce %.3g +- %.2g rad/m is zero within %d sd; the node is undetermined",
 				md.Label, md.PitchPerBounceRadPerM, md.SD.PitchPerBounceRadPerM, body.NodeDeterminedSDs)})
-		}
-		if md.SD.NaturalFrequencyHz > uncertainFraction*f || md.SD.DampingRatio > uncertainFraction {
-			ws = append(ws, Warning{WarnUncertain, fmt.Sprintf(
-				"%s: natural frequency %.3g +- %.2g Hz, damping ratio %.3f +- %.3f; a higher drop or a second "+
-					"drop would firm it up", md.Label, f, md.SD.NaturalFrequencyHz, md.DampingRatio, md.SD.DampingRatio)})
 		}
 	}
 	return ws

@@ -45,7 +45,7 @@ func TestStepsOfTheEvent(t *testing.T) {
 		}
 		margin := 0.0
 		for c, x := range ch {
-			margin = math.Max(margin, math.Abs(jumpAt(x, want))/(DefaultThresholdK*math.Sqrt(5)*ev.NoiseSD[c]))
+			margin = math.Max(margin, math.Abs(jumpAt(x, want))/(DefaultStepThresholdK*math.Sqrt(5)*ev.NoiseSD[c]))
 		}
 		margins = append(margins, margin)
 		if start := float64(want)/rate + DefaultSettleS; res.WindowStartS < start-0.5/rate {

@@ -71,6 +71,16 @@
 // within two of its standard deviations (body.SortAndLabel, the rule of
 // both routes).
 //
+// # Flags
+//
+// Fit flags a mode the FRFs cannot support (body.Mode.Flagged, with
+// reasons): by the rules of both routes (body.FlagUnsupported: large sd,
+// labels the nodes do not decide, band edge) and when the refined fit's
+// reduced chi-square exceeds 8 (both modes), as it does when pans driven
+// with correlated signals leave FRFs on one reference pan that no two-mode
+// model fits. Package identify/body documents the rules and their
+// calibration.
+//
 // # References
 //
 //   - C. Y. Shih, Y. G. Tsuei, R. J. Allemang and D. L. Brown, "Complex mode

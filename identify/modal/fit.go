@@ -22,7 +22,8 @@ const (
 	// binsPerParameter is the least number of real data per fitted
 	// parameter of one FRF.
 	binsPerParameter = 2
-	// poorResidual and poorChiSquare trigger WarnPoorFit.
+	// poorResidual and poorChiSquare trigger WarnPoorFit (a chi-square over
+	// maxChiSquare flags the modes instead).
 	poorResidual  = 0.1
 	poorChiSquare = 4.0
 	// lowCoherence triggers WarnLowCoherence (mean multiple coherence in the band).
@@ -243,6 +244,7 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	res.NormalisedResidual = pr.normalisedResidual(theta)
 	res.CoherenceInBand = coherenceInBand(set, b.bins)
 	res.Warnings = append(res.Warnings, qualityWarnings(res)...)
+	flagModes(res, set.OutputPosM)
 	return res, nil
 }
 
@@ -503,7 +505,7 @@ func coherenceInBand(set *FRFSet, bins []int) []float64 {
 
 func qualityWarnings(res *Result) []Warning {
 	var w []Warning
-	if res.NormalisedResidual > poorResidual || res.ChiSquarePerDOF > poorChiSquare {
+	if (res.NormalisedResidual > poorResidual || res.ChiSquarePerDOF > poorChiSquare) && res.ChiSquarePerDOF <= maxChiSquare {
 		w = append(w, Warning{WarnPoorFit, fmt.Sprintf(
 			"normalised residual %.3g and reduced chi-square %.3g: the two-mode model or the error bands do not "+
 				"describe the FRFs well; check for other modes in the band, nonlinearity, or a narrower band", res.NormalisedResidual, res.ChiSquarePerDOF)})

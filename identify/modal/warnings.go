@@ -29,7 +29,8 @@ const (
 	WarnExtraModes WarningCode = "extra-modes"
 	// WarnPoorFit: the normalised residual or the reduced chi-square of the
 	// refined fit is large: the model or the error bands do not describe the
-	// data.
+	// data. A reduced chi-square over maxChiSquare flags the modes instead
+	// (body.Mode.Flagged).
 	WarnPoorFit WarningCode = "poor-fit"
 	// WarnLowCoherence: the mean multiple coherence of an output in the band
 	// is low; its FRFs carry little information.

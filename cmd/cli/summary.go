@@ -48,7 +48,11 @@ func printSummary(w io.Writer, res *compare.Result) {
 		if u := m.Uncertainty; u != nil {
 			sdF, sdZ, sdN, sdP = ptr(u.NaturalFrequencyHz), ptr(u.DampingRatio), u.NodeM, u.PitchPerBounceRadPerM
 		}
-		row := []string{m.Label, pm("%.4f", ptr(m.NaturalFrequencyHz), sdF), pm("%.3f", ptr(m.DampingRatio), sdZ),
+		label := m.Label
+		if m.Flagged {
+			label += " FLAGGED" // the data cannot support it: see the warnings
+		}
+		row := []string{label, pm("%.4f", ptr(m.NaturalFrequencyHz), sdF), pm("%.3f", ptr(m.DampingRatio), sdZ),
 			pm("%+.3f", m.NodeM, sdN), pm("%+.4f", m.PitchPerBounceRadPerM, sdP), "|"}
 		if p, ok := model[m.Label]; ok {
 			row = append(row, fmt.Sprintf("%.4f", p.NaturalFrequencyHz), fmt.Sprintf("%.3f", p.DampingRatio), pm("%+.3f", p.NodeM, nil))
@@ -68,6 +72,11 @@ func printSummary(w io.Writer, res *compare.Result) {
 		fmt.Fprintln(tw, strings.Join(row, "\t"))
 	}
 	tw.Flush()
+	for _, m := range res.Modes {
+		if m.Flagged {
+			fmt.Fprintf(w, "  %s is FLAGGED: the data cannot support its values as stated (reasons under Warnings); checks that use it are inconclusive\n", m.Label)
+		}
+	}
 	if u := res.Updated; u != nil {
 		fmt.Fprintf(w, "\nEffective rates that make the model match\n  method: %s\n", u.Method)
 		var sd compare.UpdatedUncertainty

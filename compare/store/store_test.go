@@ -418,4 +418,3 @@ func TestBadVerdictRefused(t *testing.T) {
 		t.Errorf("Record with verdict ok: %v", err)
 	}
 }
-

@@ -31,10 +31,18 @@ var (
 )
 
 // result is a real analysis (a simulated drop log of the example car,
-// analysed by compare/job), the template of every recorded run: each test
-// gets its own deep copy.
+// analysed by compare/job), the template of every recorded run: each call
+// gives its own deep copy.
 func result(t testing.TB) *compare.Result {
 	t.Helper()
+	r, err := resultCopy()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+func resultCopy() (*compare.Result, error) {
 	analyseOnce.Do(func() {
 		dir, err := os.MkdirTemp("", "store-test")
 		if err != nil {
@@ -45,17 +53,17 @@ func result(t testing.TB) *compare.Result {
 		analysed, analysedErr = analyseDrop(dir)
 	})
 	if analysedErr != nil {
-		t.Fatal(analysedErr)
+		return nil, analysedErr
 	}
 	b, err := json.Marshal(analysed)
 	if err != nil {
-		t.Fatal(err)
+		return nil, err
 	}
 	var r compare.Result
 	if err := json.Unmarshal(b, &r); err != nil {
-		t.Fatal(err)
+		return nil, err
 	}
-	return &r
+	return &r, nil
 }
 
 func analyseDrop(dir string) (*compare.Result, error) {
@@ -85,14 +93,26 @@ func analyseDrop(dir string) (*compare.Result, error) {
 // runOf is run number i of car, analysed at a fixed time plus i minutes;
 // its log hash is made unique by i (the run key follows).
 func runOf(t testing.TB, car string, i int) store.Run {
-	res := result(t)
+	t.Helper()
+	r, err := runOrErr(car, i)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+func runOrErr(car string, i int) (store.Run, error) {
+	res, err := resultCopy()
+	if err != nil {
+		return store.Run{}, err
+	}
 	res.Log.SHA256 = fmt.Sprintf("%064x", i)
 	res.Log.Path = fmt.Sprintf("logs/%s-%d.csv", car, i)
 	return store.Run{
 		Car: car, Run: fmt.Sprint(i), Result: res,
 		AnalysedAt: time.Date(2031, 5, 4, 9, 0, 0, 0, time.UTC).Add(time.Duration(i) * time.Minute),
 		Meta:       map[string]string{"notes": fmt.Sprintf("run %d of %s", i, car)},
-	}
+	}, nil
 }
 
 func openSQLite(t testing.TB) (*store.Store, string) {

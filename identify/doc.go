@@ -25,4 +25,8 @@
 // Conventions: SI units; frequencies in Hz; harmonic quantities in the
 // e^{+i omega t} convention; body positions s from the CG, positive forward
 // (package identify/body fixes the axes).
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// identify layer. It may import ingest and its own subpackages (spectral,
+// modal, decay, body, lsq), never compare, plots or cmd.
 package identify

@@ -70,4 +70,9 @@
 // cores; the consumer, the checks and the fit of the sample rate run on the
 // caller's goroutine, in file order. ReadAll keeps the whole (windowed) log in
 // memory instead.
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// bottom. It imports no package of the module; besides the standard library
+// it uses go-toml/v2 for the setup file. It draws nothing on a terminal: the
+// progress hook (Options.Progress) is the caller's to draw.
 package ingest

@@ -122,4 +122,9 @@
 // 1.47 Hz); the rig's coherence (0.996 or more) and rank-one ratios (0.08
 // or less) stayed far from their warning levels in every log, the road
 // drive's included.
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// identify layer, beneath modal and decay (which return its Mode) and used by
+// compare for the geometry. It may import only the standard library and
+// gonum, no package of the module.
 package body

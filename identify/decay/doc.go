@@ -194,4 +194,9 @@
 //     Applications, 5th ed., 1998 [memory].
 //   - The stabilisation tolerances follow the usual practice of the trade
 //     [memory]; the damping tolerance is widened for heavy damping.
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// identify layer. It may import ingest (the default band), identify/body,
+// identify/lsq and identify/spectral (its decimation filter), never compare,
+// plots or cmd: it works on samples in memory.
 package decay

@@ -112,4 +112,8 @@
 //   - H. White, "A heteroskedasticity-consistent covariance matrix
 //     estimator and a direct test for heteroskedasticity", Econometrica
 //     48(4):817-838, 1980 (the sandwich form of the covariance).
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// identify layer. It may import identify/body, identify/lsq and
+// identify/spectral (the FRFs it fits), never compare, plots or cmd.
 package modal

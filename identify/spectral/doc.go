@@ -77,4 +77,8 @@
 //     doi:10.1109/TAU.1967.1161901.
 //   - ISO 18431-2:2004, Mechanical vibration and shock - Signal processing -
 //     Part 2: Time domain windows for Fourier Transform analysis.
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// identify layer. It imports no package of the module: it works on blocks of
+// samples, whoever reads them.
 package spectral

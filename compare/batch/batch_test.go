@@ -19,6 +19,7 @@ import (
 	"github.com/ridemodes/ridemodes/compare/batch"
 	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/compare/simulate"
+	"github.com/ridemodes/ridemodes/compare/store"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
@@ -159,10 +160,10 @@ func TestFolderOfGoodAndBrokenLogs(t *testing.T) {
 	want := []struct{ run, verdict, err string }{
 		{"a-design", compare.StatusPass, ""},
 		{"b-design", compare.StatusPass, ""},
-		{"bad-cell", batch.VerdictError, "bad-cell.csv:20"},
+		{"bad-cell", store.VerdictError, "bad-cell.csv:20"},
 		{"c-stiff", compare.StatusFail, ""},
-		{"drop-as-rig", batch.VerdictError, "--test drop"},
-		{"empty", batch.VerdictError, "empty.csv"},
+		{"drop-as-rig", store.VerdictError, "--test drop"},
+		{"empty", store.VerdictError, "empty.csv"},
 	}
 	rows := readCSV(t, summaries[0][0])
 	if len(rows) != len(want)+1 {
@@ -177,10 +178,10 @@ func TestFolderOfGoodAndBrokenLogs(t *testing.T) {
 				i+1, r[col("run")], r[col("verdict")], r[col("error")], r[col("result_json")], w.run, w.verdict, w.err)
 		}
 	}
-	if got := b.Worst(); got != batch.VerdictError {
-		t.Errorf("worst verdict %q, want %q", got, batch.VerdictError)
+	if got := b.Worst(); got != store.VerdictError {
+		t.Errorf("worst verdict %q, want %q", got, store.VerdictError)
 	}
-	if n := b.Count(batch.VerdictError); n != 3 {
+	if n := b.Count(store.VerdictError); n != 3 {
 		t.Errorf("%d failed logs, want 3", n)
 	}
 }
@@ -273,17 +274,12 @@ func TestOutputMayNotReplaceInputs(t *testing.T) {
 // TestWorstFollowsExitCodes: the worst verdict orders failed logs over
 // failed checks over inconclusive ones (exit codes 1 > 3 > 4 > 0).
 func TestWorstFollowsExitCodes(t *testing.T) {
-	row := func(status string) batch.Row {
-		if status == batch.VerdictError {
-			return batch.Row{Error: "broken"}
-		}
-		return batch.Row{Result: &compare.Result{Verdict: &compare.Verdict{Status: status}}}
-	}
+	row := func(status string) batch.Row { return batch.Row{Record: store.Run{Verdict: status}} }
 	for _, c := range []struct {
 		verdicts []string
 		want     string
 	}{
-		{[]string{"pass", "none", "inconclusive", "fail", "error"}, batch.VerdictError},
+		{[]string{"pass", "none", "inconclusive", "fail", "error"}, store.VerdictError},
 		{[]string{"inconclusive", "fail", "pass"}, compare.StatusFail},
 		{[]string{"none", "inconclusive", "pass"}, compare.StatusInconclusive},
 		{[]string{"none", "pass"}, ""},
@@ -352,5 +348,83 @@ func TestResultNames(t *testing.T) {
 	}
 	if _, err := strconv.ParseUint(names[0][4:20], 16, 64); err != nil {
 		t.Errorf("name %q: %v", names[0], err)
+	}
+}
+
+// TestManifestCampaignRecordsEachRunOnce: a manifest of mixed tests (its
+// test column), good, missing and empty logs, run twice into one SQLite
+// store, leaves one run per row with its verdict and metadata: recording
+// again replaces, and a log that cannot be read is keyed by its path, so
+// two of them do not replace each other.
+func TestManifestCampaignRecordsEachRunOnce(t *testing.T) {
+	dir := t.TempDir()
+	targetsSetup(t, dir)
+	writeLog(t, filepath.Join(dir, "rig.csv"), "rig", 1, 1)
+	writeLog(t, filepath.Join(dir, "drop.csv"), "drop", stiffRear, 2)
+	writeFile(t, filepath.Join(dir, "empty.csv"), "")
+	manifest := filepath.Join(dir, "campaign.csv")
+	writeFile(t, manifest, "log,setup,car,run,test,date\n"+
+		"rig.csv,car.toml,HX2,1,,2026-03-02\n"+
+		"drop.csv,car.toml,HX2,2,drop,2026-03-03\n"+
+		"missing.csv,car.toml,HX2,3,,2026-03-04\n"+
+		"gone.csv,car.toml,HX2,4,,2026-03-04\n"+
+		"empty.csv,car.toml,HX2,5,,2026-03-05\n")
+	c, err := batch.ReadManifest(manifest, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, err := store.Open(context.Background(), filepath.Join(dir, "campaign.sqlite"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	for range 2 {
+		if _, err := batch.Run(context.Background(), c, batch.Options{Out: filepath.Join(dir, "out"), Workers: 2, Store: st,
+			Job: job.Options{ToolVersion: "test"}}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	runs, err := st.Runs(context.Background(), store.Filter{Car: "HX2"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := map[string]struct{ test, verdict, err string }{
+		"1": {"rig", compare.StatusPass, ""},
+		"2": {"drop", compare.StatusFail, ""},
+		"3": {"rig", store.VerdictError, "missing.csv"},
+		"4": {"rig", store.VerdictError, "gone.csv"},
+		"5": {"rig", store.VerdictError, "empty.csv"},
+	}
+	if len(runs) != len(want) {
+		t.Fatalf("%d runs in the store after recording %d logs twice", len(runs), len(want))
+	}
+	for _, r := range runs {
+		w := want[r.Run]
+		if r.Test != w.test || r.Verdict != w.verdict || !strings.Contains(r.Error, w.err) || r.Meta["date"] == "" ||
+			(r.Result == nil) != (w.err != "") {
+			t.Errorf("run %s: test %q verdict %q error %q meta %v; want %s, %s, an error naming %q", r.Run, r.Test, r.Verdict, r.Error, r.Meta, w.test, w.verdict, w.err)
+		}
+	}
+}
+
+// TestStoreFailureStopsCampaign: a store that refuses a run stops the
+// campaign with the store's error, and no summary is written.
+func TestStoreFailureStopsCampaign(t *testing.T) {
+	logDir, setup := campaignFolder(t)
+	c, err := batch.Expand([]string{logDir}, setup, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, err := store.Open(context.Background(), filepath.Join(t.TempDir(), "campaign.sqlite"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	st.Close() // every Record now fails
+	out := filepath.Join(t.TempDir(), "out")
+	if _, err := batch.Run(context.Background(), c, batch.Options{Out: out, Workers: 2, Store: st}); err == nil || errors.Is(err, context.Canceled) {
+		t.Fatalf("closed store: %v, want the store's error", err)
+	}
+	if _, err := os.Stat(filepath.Join(out, batch.SummaryCSV)); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("summary written after the store failed (%v)", err)
 	}
 }

@@ -11,6 +11,8 @@ import (
 	"slices"
 	"strings"
 
+	"github.com/ridemodes/ridemodes/compare/job"
+	"github.com/ridemodes/ridemodes/identify"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
@@ -59,6 +61,9 @@ type setupFile struct {
 // run is its file name without the extension and its car the setup's
 // [vehicle] name.
 func Expand(inputs []string, setupPath, test string) (*Campaign, error) {
+	if err := checkTest(test); err != nil {
+		return nil, err
+	}
 	var logs []string
 	for _, in := range inputs {
 		found, err := expandInput(in, true)
@@ -85,6 +90,15 @@ func Expand(inputs []string, setupPath, test string) (*Campaign, error) {
 		c.Items = append(c.Items, Item{Log: log, Setup: setupPath, Car: sf.setup.Vehicle.Name, Run: run, Test: test})
 	}
 	return c, nil
+}
+
+// checkTest refuses a test other than rig, drop or "" with a
+// *job.OptionError: the caller's mistake.
+func checkTest(test string) error {
+	if test != "" && test != identify.TestRig && test != identify.TestDrop {
+		return &job.OptionError{Err: fmt.Errorf("test %q: choose rig or drop (or leave it to the setup)", test)}
+	}
+	return nil
 }
 
 // expandInput lists the logs of one input; glob says whether a pattern is

@@ -52,10 +52,14 @@ const (
 var manifestColumns = []string{colLog, colSetup, colCar, colRun, colTest}
 
 // ReadManifest reads the manifest at path and loads every setup it names.
-// Its paths are relative to the manifest's folder (or absolute). A setup that
-// cannot be loaded is an error at its first row, so a mistake stops the
-// campaign before any log is analysed.
-func ReadManifest(path string) (*Campaign, error) {
+// Its paths are relative to the manifest's folder (or absolute). Rows
+// whose test cell is empty (or that have none) take test ("rig", "drop", or
+// "": from the setup). A setup that cannot be loaded is an error at its
+// first row, so a mistake stops the campaign before any log is analysed.
+func ReadManifest(path, test string) (*Campaign, error) {
+	if err := checkTest(test); err != nil {
+		return nil, err
+	}
 	data, err := os.ReadFile(path)
 	if err != nil {
 		return nil, fmt.Errorf("cannot read the manifest: %w", err)
@@ -70,6 +74,9 @@ func ReadManifest(path string) (*Campaign, error) {
 	for i := range c.Items {
 		it := &c.Items[i]
 		it.Log, it.Setup = joinPath(dir, it.Log), joinPath(dir, it.Setup)
+		if it.Test == "" {
+			it.Test = test
+		}
 		if _, ok := c.setups[it.Setup]; ok {
 			continue
 		}

@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"github.com/ridemodes/ridemodes/compare/batch"
+	"github.com/ridemodes/ridemodes/compare/job"
 )
 
 // TestManifestMistakes: every mistake is a *ManifestError at the line and
@@ -79,12 +80,20 @@ func TestManifestRows(t *testing.T) {
 	targetsSetup(t, filepath.Join(dir, "cars"))
 	path := filepath.Join(dir, "campaign.csv")
 	writeFile(t, path, strings.ReplaceAll(text, "car.toml", "cars/car.toml"))
-	c, err = batch.ReadManifest(path)
+	c, err = batch.ReadManifest(path, "")
 	if err != nil {
 		t.Fatal(err)
 	}
 	if c.Items[0].Log != filepath.Join(dir, "day1", "rig.csv") || c.Items[1].Setup != filepath.Join(dir, "cars", "car.toml") || c.Manifest != path {
 		t.Errorf("paths not joined to the manifest's folder: %+v", c.Items[0])
+	}
+	// The command's test fills empty test cells only.
+	if c, err = batch.ReadManifest(path, "rig"); err != nil || c.Items[0].Test != "rig" || c.Items[1].Test != "drop" {
+		t.Errorf("with test rig: %v, items %+v", err, c)
+	}
+	var oe *job.OptionError
+	if _, err := batch.ReadManifest(path, "shaker"); !errors.As(err, &oe) {
+		t.Errorf("test shaker: %v, want an option error", err)
 	}
 }
 
@@ -96,7 +105,7 @@ func TestManifestSetupMistake(t *testing.T) {
 	writeFile(t, filepath.Join(dir, "broken.toml"), "[vehicle]\nmass_kg = \"heavy\"\n")
 	path := filepath.Join(dir, "campaign.csv")
 	writeFile(t, path, "log,setup,car,run\na.csv,car.toml,HX2,1\nb.csv,broken.toml,HX2,2\n")
-	_, err := batch.ReadManifest(path)
+	_, err := batch.ReadManifest(path, "")
 	var me *batch.ManifestError
 	if !errors.As(err, &me) || me.Line != 3 || me.Column != 7 || !strings.Contains(err.Error(), "broken.toml:2") {
 		t.Errorf("got %v, want campaign.csv:3:7 with the setup's own line", err)

@@ -2,10 +2,13 @@ package batch
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"os"
 	"path/filepath"
 	"runtime"
+	"strings"
 	"sync"
 	"time"
 
@@ -13,6 +16,7 @@ import (
 
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/compare/job"
+	"github.com/ridemodes/ridemodes/compare/store"
 	"github.com/ridemodes/ridemodes/identify"
 	"github.com/ridemodes/ridemodes/ingest"
 )
@@ -24,10 +28,6 @@ const (
 	SummaryJSON = "summary.jsonl"
 )
 
-// VerdictError is the verdict of a log whose analysis failed, beside the
-// result verdicts pass, fail, inconclusive and none.
-const VerdictError = "error"
-
 // Options say where a campaign's outputs go and how it runs.
 type Options struct {
 	// Out is the folder of the outputs; it is created when missing, and
@@ -38,6 +38,8 @@ type Options struct {
 	// Job holds the analysis options of every log; its LogPath, Setup,
 	// SetupPath and Test are set per item, its Progress is not used.
 	Job job.Options
+	// Store, when not nil, records every run as soon as it is done.
+	Store *store.Store
 	// Done, when not nil, is called after each log with the number of logs
 	// done so far; the calls never overlap.
 	Done func(done int)
@@ -47,26 +49,14 @@ type Options struct {
 // rig or drop, from the setup when the item left it empty.
 type Row struct {
 	Item
-	// Result is the analysis result (nil when the analysis failed), and
-	// ResultFile its JSON's path under Out.
-	Result     *compare.Result
+	// ResultFile is the path of the result JSON under Out ("" when the
+	// analysis failed).
 	ResultFile string
-	// Error is the message of a failed analysis ("" otherwise).
-	Error string
-	// LogSHA256 and SetupSHA256 are the hex SHA-256 of the files' content
-	// (LogSHA256 is "" when the log cannot be read).
-	LogSHA256, SetupSHA256 string
-	// AnalysedAt is when the analysis ended.
-	AnalysedAt time.Time
-}
-
-// Verdict is the row's verdict: the result's (pass, fail, inconclusive,
-// none), or VerdictError for a failed analysis.
-func (r *Row) Verdict() string {
-	if r.Result == nil {
-		return VerdictError
-	}
-	return r.Result.Verdict.Status
+	// Record is the run as a store keeps it: content hashes, run key,
+	// time, verdict (store.VerdictError for a failed analysis), error
+	// message, result (nil for a failed analysis) and metadata. A log that
+	// cannot be read has no content hash and is keyed by its path instead.
+	Record store.Run
 }
 
 // Batch is a finished campaign: its rows in the campaign's order.
@@ -79,18 +69,28 @@ type Batch struct {
 func (b *Batch) Count(verdict string) int {
 	n := 0
 	for i := range b.Rows {
-		if b.Rows[i].Verdict() == verdict {
+		if b.Rows[i].Record.Verdict == verdict {
 			n++
 		}
 	}
 	return n
 }
 
+// Tally counts the rows by verdict: "2 pass, 1 fail, 0 inconclusive,
+// 0 none, 1 error".
+func (b *Batch) Tally() string {
+	var counts []string
+	for _, v := range []string{compare.StatusPass, compare.StatusFail, compare.StatusInconclusive, compare.StatusNone, store.VerdictError} {
+		counts = append(counts, fmt.Sprintf("%d %s", b.Count(v), v))
+	}
+	return strings.Join(counts, ", ")
+}
+
 // Worst returns the most severe verdict of the rows, in the order of the
-// exit codes: VerdictError, then fail, then inconclusive; "" when every
-// log passed or had no targets.
+// exit codes: store.VerdictError, then fail, then inconclusive; "" when
+// every log passed or had no targets.
 func (b *Batch) Worst() string {
-	for _, v := range []string{VerdictError, compare.StatusFail, compare.StatusInconclusive} {
+	for _, v := range []string{store.VerdictError, compare.StatusFail, compare.StatusInconclusive} {
 		if b.Count(v) > 0 {
 			return v
 		}
@@ -101,7 +101,10 @@ func (b *Batch) Worst() string {
 // Run analyses every item of the campaign with at most o.Workers at once
 // and writes the outputs (see the package doc). A failed analysis becomes
 // its row's Error; Run returns an error only when the context is cancelled
-// (ctx.Err()) or an output cannot be written, and then writes no summary.
+// (ctx.Err()), an output cannot be written or the store refuses a run, and
+// then writes no summary. Runs are recorded by one goroutine beside the
+// workers, so that no worker waits for the store (an SQLite commit waits
+// for the disk).
 func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 	if err := guardInputs(c, o.Out); err != nil {
 		return nil, err
@@ -114,8 +117,11 @@ func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 		workers = runtime.NumCPU()
 	}
 	b := &Batch{Rows: make([]Row, len(c.Items)), MetaColumns: c.MetaColumns}
-	g, gctx := errgroup.WithContext(ctx)
+	rctx, stop := context.WithCancelCause(ctx)
+	defer stop(nil)
+	g, gctx := errgroup.WithContext(rctx)
 	g.SetLimit(workers)
+	records, recorded := recorder(rctx, stop, o.Store, workers)
 	var (
 		mu   sync.Mutex
 		done int
@@ -130,6 +136,9 @@ func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 				return err
 			}
 			b.Rows[i] = row
+			if records != nil {
+				records <- row.Record
+			}
 			mu.Lock()
 			defer mu.Unlock()
 			done++
@@ -139,7 +148,14 @@ func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 			return nil
 		})
 	}
-	if err := g.Wait(); err != nil {
+	err := g.Wait()
+	if records != nil {
+		close(records)
+		if rerr := <-recorded; rerr != nil {
+			return nil, rerr
+		}
+	}
+	if err != nil {
 		return nil, err
 	}
 	if err := ctx.Err(); err != nil {
@@ -151,34 +167,73 @@ func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 	return b, nil
 }
 
+// recorder starts the goroutine that records the runs sent on records in
+// st (nil channels when st is nil) and, once records is closed, sends its
+// first error or nil on recorded. An error stops the campaign (stop) and
+// the runs still sent are not recorded.
+func recorder(ctx context.Context, stop context.CancelCauseFunc, st *store.Store, workers int) (records chan store.Run, recorded chan error) {
+	if st == nil {
+		return nil, nil
+	}
+	records, recorded = make(chan store.Run, workers), make(chan error, 1)
+	go func() {
+		var err error
+		for r := range records {
+			if err == nil {
+				if err = st.Record(ctx, r); err != nil {
+					stop(err)
+				}
+			}
+		}
+		recorded <- err
+	}()
+	return records, recorded
+}
+
 // analyse runs one item and writes its result JSON.
 func analyse(ctx context.Context, c *Campaign, it Item, o Options) (Row, error) {
 	sf := c.setups[it.Setup]
-	row := Row{Item: it, SetupSHA256: sf.sha256, ResultFile: filepath.Join(ResultsDir, it.ResultName())}
+	row := Row{Item: it, Record: store.Run{LogPath: it.Log, SetupSHA256: sf.sha256, Car: it.Car, Run: it.Run,
+		ToolVersion: o.Job.ToolVersion, Meta: map[string]string{}}}
+	for i, name := range c.MetaColumns {
+		row.Record.Meta[name] = it.Meta[i]
+	}
 	if test, err := identify.TestOf(sf.setup, it.Test); err == nil {
 		row.Test = test
 	}
 	jo := o.Job
 	jo.LogPath, jo.Setup, jo.SetupPath, jo.Test, jo.Progress = it.Log, sf.setup, it.Setup, it.Test, nil
 	out, err := job.Analyze(ctx, jo)
-	row.AnalysedAt = time.Now().UTC()
 	if ctx.Err() != nil {
 		return Row{}, ctx.Err()
 	}
+	rec := &row.Record
+	rec.AnalysedAt, rec.Test = time.Now().UTC(), row.Test
 	if err != nil {
-		row.Error, row.ResultFile = err.Error(), ""
-		row.LogSHA256, _ = ingest.FileSHA256(it.Log)
-		return row, nil
+		rec.Verdict, rec.Error = store.VerdictError, err.Error()
+		if rec.LogSHA256, err = ingest.FileSHA256(it.Log); err != nil {
+			rec.RunKey = store.RunKey(hexSHA256("unreadable log "+it.Log), sf.sha256, rec.ToolVersion)
+		}
+	} else {
+		rec.Result, rec.Verdict, rec.LogSHA256 = out.Result, out.Result.Verdict.Status, out.Result.Log.SHA256
+		data, err := out.Result.Marshal()
+		if err != nil {
+			return Row{}, err
+		}
+		row.ResultFile = filepath.Join(ResultsDir, it.ResultName())
+		if err := ingest.WriteFileAtomic(filepath.Join(o.Out, row.ResultFile), data); err != nil {
+			return Row{}, err
+		}
 	}
-	row.Result, row.LogSHA256 = out.Result, out.Result.Log.SHA256
-	data, err := out.Result.Marshal()
-	if err != nil {
-		return Row{}, err
-	}
-	if err := ingest.WriteFileAtomic(filepath.Join(o.Out, row.ResultFile), data); err != nil {
-		return Row{}, err
+	if rec.RunKey == "" {
+		rec.RunKey = store.RunKey(rec.LogSHA256, rec.SetupSHA256, rec.ToolVersion)
 	}
 	return row, nil
+}
+
+func hexSHA256(s string) string {
+	h := sha256.Sum256([]byte(s))
+	return hex.EncodeToString(h[:])
 }
 
 // guardInputs refuses an output folder whose summary files would replace

@@ -30,6 +30,17 @@ func newShard(index, count int, what string) (Shard, error) {
 	return Shard{Index: index, Count: count}, nil
 }
 
+// ChooseShard returns the shard that text ("I/N", a command's flag) names,
+// or, when text is empty, the scheduler's (ShardFromEnv), and says from
+// where it came ("" for the whole campaign).
+func ChooseShard(text string, getenv func(string) string) (s Shard, from string, err error) {
+	if text == "" {
+		return ShardFromEnv(getenv)
+	}
+	s, err = ParseShard(text)
+	return s, "--shard " + text, err
+}
+
 // Scheduler index variables that ShardFromEnv reads.
 const (
 	// EnvJobIndex is the 0-based completion index that Kubernetes sets in

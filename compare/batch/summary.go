@@ -34,11 +34,12 @@ var summaryColumns = []string{
 // values returns the row's summary values in the order of summaryColumns
 // and then its metadata: strings, bools, *float64, and nil (no value).
 func (r *Row) values() []any {
-	v := []any{filepath.ToSlash(r.Log), filepath.ToSlash(r.Setup), r.Car, r.Run, r.Test, r.Verdict(), r.Error, filepath.ToSlash(r.ResultFile)}
+	rec := &r.Record
+	v := []any{filepath.ToSlash(r.Log), filepath.ToSlash(r.Setup), r.Car, r.Run, r.Test, rec.Verdict, rec.Error, filepath.ToSlash(r.ResultFile)}
 	for _, label := range []string{"bounce", "pitch"} {
-		v = append(v, modeValues(r.Result, label)...)
+		v = append(v, modeValues(rec.Result, label)...)
 	}
-	v = append(v, rateValues(r.Result)...)
+	v = append(v, rateValues(rec.Result)...)
 	for _, m := range r.Meta {
 		v = append(v, m)
 	}

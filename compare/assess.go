@@ -16,9 +16,11 @@ func ModelMethod(damped bool) string {
 	return "undamped eigenproblem"
 }
 
-// ModelPart is the model part of a result: the design model's modes.
-func ModelPart(modes []Mode, damped bool) *ModelJSON {
-	m := &ModelJSON{Damped: damped}
+// ModelPart is the model part of a result: the design's rates and its
+// model's modes.
+func ModelPart(design Vehicle, modes []Mode) *ModelJSON {
+	damped := design.Damped()
+	m := &ModelJSON{Damped: damped, Rates: RatesJSON(design.RatesOf())}
 	for _, md := range modes {
 		m.Modes = append(m.Modes, md.JSON("design model, "+ModelMethod(damped)))
 	}
@@ -50,7 +52,7 @@ func (r *Result) AssessAgainst(setup *ingest.Setup) error {
 	if err != nil {
 		return fmt.Errorf("%s: %w", setup.Path, err)
 	}
-	r.Model = ModelPart(model, design.Damped())
+	r.Model = ModelPart(design, model)
 	measured, err := MeasuredFromJSON(r.Modes)
 	if err != nil {
 		return err

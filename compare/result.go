@@ -87,8 +87,12 @@ type LogRef struct {
 
 // ModelJSON is the model part of a result.
 type ModelJSON struct {
-	Damped bool       `json:"damped"`
-	Modes  []ModeJSON `json:"modes"`
+	Damped bool `json:"damped"`
+	// Rates are the design's ride rates and damping, as the setup gives
+	// them (damping 0 when it gives none): the reference of the
+	// back-calculated ones.
+	Rates RatesJSON  `json:"rates"`
+	Modes []ModeJSON `json:"modes"`
 }
 
 // ModeJSON is one mode as the contract writes it. Pointers are null when a

@@ -96,17 +96,32 @@ func WriteReport(dir string, in ReportInput) (written []string, err error) {
 		return nil, errors.New("plots: report: no result to report")
 	}
 	specs := reportFigures(in)
-	pngs := make([][]byte, len(specs))
 	view := newReportView(in)
+	pngs, figures, err := drawFigures(specs)
+	if err != nil {
+		return nil, err
+	}
+	view.Figures = figures
+	var page bytes.Buffer
+	if err := reportTemplate.Execute(&page, view); err != nil {
+		return nil, fmt.Errorf("plots: report: %w", err)
+	}
+	return writeReportFiles(dir, specs, pngs, ReportFile, page.Bytes())
+}
+
+// drawFigures draws specs and encodes each as PNG, with its view for a
+// page (numbered from 1, embedded as a data URL).
+func drawFigures(specs []figureSpec) (pngs [][]byte, views []figureView, err error) {
+	pngs = make([][]byte, len(specs))
 	for i, spec := range specs {
 		fig, err := spec.draw()
 		if err != nil {
-			return nil, fmt.Errorf("plots: report: %s figure: %w", strings.ToLower(spec.title), err)
+			return nil, nil, fmt.Errorf("plots: report: %s figure: %w", strings.ToLower(spec.title), err)
 		}
 		if pngs[i], err = fig.Encode("png"); err != nil {
-			return nil, fmt.Errorf("plots: report: %s figure: %w", strings.ToLower(spec.title), err)
+			return nil, nil, fmt.Errorf("plots: report: %s figure: %w", strings.ToLower(spec.title), err)
 		}
-		view.Figures = append(view.Figures, figureView{
+		views = append(views, figureView{
 			Number:  i + 1,
 			Title:   spec.title,
 			Caption: spec.caption,
@@ -116,11 +131,15 @@ func WriteReport(dir string, in ReportInput) (written []string, err error) {
 			Source: template.URL("data:image/png;base64," + base64.StdEncoding.EncodeToString(pngs[i])),
 		})
 	}
-	var page bytes.Buffer
-	if err := reportTemplate.Execute(&page, view); err != nil {
-		return nil, fmt.Errorf("plots: report: %w", err)
-	}
+	return pngs, views, nil
+}
 
+// writeReportFiles writes the figures' PNG files into dir (created when
+// missing) and then the page as pageFile. It returns the paths written,
+// figures first, the page last. Every file goes through a temporary file in
+// dir and a rename; when any step fails, the files of this call are
+// removed (and dir, when this call created it) and nothing is left behind.
+func writeReportFiles(dir string, specs []figureSpec, pngs [][]byte, pageFile string, page []byte) (written []string, err error) {
 	_, statErr := os.Stat(dir)
 	created := errors.Is(statErr, os.ErrNotExist)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
@@ -145,8 +164,8 @@ func WriteReport(dir string, in ReportInput) (written []string, err error) {
 		}
 		written = append(written, path)
 	}
-	path := filepath.Join(dir, ReportFile)
-	if err := ingest.WriteFileAtomic(path, page.Bytes()); err != nil {
+	path := filepath.Join(dir, pageFile)
+	if err := ingest.WriteFileAtomic(path, page); err != nil {
 		return written, err
 	}
 	return append(written, path), nil

@@ -7,6 +7,7 @@ import (
 
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/compare/job"
+	"github.com/ridemodes/ridemodes/compare/store"
 	"github.com/ridemodes/ridemodes/ingest"
 	"github.com/ridemodes/ridemodes/plots"
 )
@@ -15,6 +16,7 @@ func newAnalyzeCmd() *cobra.Command {
 	var (
 		o                   job.Options
 		jsonPath, reportDir string
+		storeTarget         string
 	)
 	cmd := &cobra.Command{
 		Use:   "analyze LOG... --setup FILE [--test rig|drop] [--json OUT] [--report DIR]",
@@ -36,10 +38,11 @@ the runs agree; a run that disagrees is named and the pooled uncertainty is
 widened. Three drops pin a node about 1/sqrt(3) as tightly as one.
 
 It prints a summary; --json writes the result (the contract's keys), --report
-writes an HTML report with figures into a folder. Choices (band, resolution,
-model order) are made from the data, with their reasons in the result; each
-can be overridden by a flag or the setup's [analysis] table. Ctrl-C stops the
-run and leaves no output file behind.
+writes an HTML report with figures into a folder, --store records the run in a
+campaign store (see history). Choices (band, resolution, model order) are made
+from the data, with their reasons in the result; each can be overridden by a
+flag or the setup's [analysis] table. Ctrl-C stops the run and leaves no
+output file behind.
 
 Exit codes: 0 done; 1 bad data or a failed analysis; 2 bad usage; 3 done, but
 a check in [targets] failed.
@@ -47,6 +50,7 @@ a check in [targets] failed.
 ` + compare.Cautions,
 		Example: `  ridemodes analyze rig.csv --setup car.toml
   ridemodes analyze rig.csv --setup car.toml --json result.json --report report/
+  ridemodes analyze rig.csv --setup car.toml --store campaign.sqlite
   ridemodes analyze drop.csv --setup car.toml --test drop --start 2 --end 30
   ridemodes analyze drop-1.csv drop-2.csv drop-3.csv --setup car.toml --test drop`,
 		Args: usageArgs(cobra.MinimumNArgs(1)),
@@ -59,6 +63,11 @@ a check in [targets] failed.
 				return libraryError(err)
 			}
 			printSummary(cmd.OutOrStdout(), out.Result)
+			if storeTarget != "" {
+				if err := store.RecordResult(cmd.Context(), storeTarget, out.Setup.Vehicle.Name, out.Result); err != nil {
+					return err
+				}
+			}
 			return writeOutcome(out, jsonPath, reportDir)
 		},
 	}
@@ -66,6 +75,7 @@ a check in [targets] failed.
 	f := cmd.Flags()
 	f.StringVar(&jsonPath, "json", "", "write the result as JSON to this file")
 	f.StringVar(&reportDir, "report", "", "write an HTML report with figures into this folder")
+	f.StringVar(&storeTarget, "store", "", "record the run in a campaign store: an SQLite file or a postgres:// URL")
 	f.IntVar(&o.MaxModelOrder, "max-order", 0, "highest model order of the fit's sweep, even, at least 4 (default from [analysis], else the method's own)")
 	f.IntVar(&o.Event, "event", 0, "drop test: which release to analyse, counted from 0")
 	cmd.MarkFlagFilename("json", "json")

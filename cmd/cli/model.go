@@ -59,7 +59,7 @@ farther from the CG is labelled bounce, the other pitch.`,
 			res := &compare.Result{
 				Tool:   compare.Tool{Name: "ridemodes", Version: version()},
 				Setup:  &compare.FileRef{Path: setupPath, SHA256: sum},
-				Model:  compare.ModelPart(modes, damped),
+				Model:  compare.ModelPart(v, modes),
 				Checks: guidance,
 			}
 			data, err := res.Marshal()

@@ -7,6 +7,7 @@ import (
 	"database/sql"
 	"encoding/hex"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"net/url"
 	"os"
@@ -361,4 +362,36 @@ func digitPrefix(s string) string {
 		i++
 	}
 	return s[:i]
+}
+
+// RecordResult opens the store at target, records one analysed result and
+// closes the store: the run of `analyze --store`. The run is named after its
+// log file (a pooled result: its logs' names joined by "+"); car is the
+// setup's vehicle name, or when empty the setup file's name, both without
+// their extensions.
+func RecordResult(ctx context.Context, target, car string, res *compare.Result) error {
+	var names []string
+	if res.Log != nil {
+		names = append(names, baseName(res.Log.Path))
+	}
+	for _, r := range res.Runs {
+		if r.Log != nil {
+			names = append(names, baseName(r.Log.Path))
+		}
+	}
+	if car == "" && res.Setup != nil {
+		car = baseName(res.Setup.Path)
+	}
+	s, err := Open(ctx, target)
+	if err != nil {
+		return err
+	}
+	err = s.Record(ctx, Run{Car: car, Run: strings.Join(names, "+"), Result: res})
+	return errors.Join(err, s.Close())
+}
+
+// baseName is a path's file name without its extension.
+func baseName(path string) string {
+	b := filepath.Base(path)
+	return strings.TrimSuffix(b, filepath.Ext(b))
 }

@@ -1,0 +1,102 @@
+// Package control draws Shewhart control charts for individual measurements:
+// the individuals (X) chart and the moving-range (MR) chart of a series of
+// single values in time order, with limits estimated from the series' own
+// point-to-point scatter. It decides whether a value (or a jump between two
+// consecutive values) is larger than the series' short-term scatter
+// explains.
+//
+// # Limits
+//
+// With x_1..x_n and the moving ranges MR_i = |x_i - x_(i-1)|, i = 2..n:
+//
+//	MRbar  = mean of the MR_i
+//	sigma  = MRbar / d2                       (d2 = 1.128 for ranges of two)
+//	X chart:  centre line mean(x), limits mean(x) ± 3 sigma = mean(x) ± 2.66 MRbar
+//	MR chart: centre line MRbar, upper limit D4 MRbar = 3.267 MRbar, lower limit 0
+//
+// Values keep the unit of the series.
+//
+// References:
+//   - D. C. Montgomery, Introduction to Statistical Quality Control, 7th ed.,
+//     Wiley, 2012: the individuals and moving-range charts (sec. 6.4, from
+//     memory), and the factors d2 = 1.128 and D4 = 3.267 for n = 2 (Appendix
+//     VI, the table of factors for variables control charts).
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// compare layer, pure arithmetic with no imports of the project.
+package control
+
+import (
+	"fmt"
+	"math"
+)
+
+// Factors for moving ranges of two consecutive values (subgroups of n = 2)
+// of the table of factors (Montgomery 2012, Appendix VI). D2 is the mean
+// range of two independent standard normal values, 2/sqrt(pi); D4 is
+// 1 + 3 d3/d2 with d3 = sqrt(2 - 4/pi), the standard deviation of that range.
+const (
+	D2 = 1.128
+	D4 = 3.267
+)
+
+// XFactor multiplies the mean moving range to give the half-width of the
+// individuals chart's limits: 3/d2 = 2.66.
+const XFactor = 3 / D2
+
+// Chart is an individuals and moving-range chart of a series.
+type Chart struct {
+	// Center is the mean of the series; Lower and Upper are the limits of
+	// the individuals chart, Center ∓ XFactor*MeanMR.
+	Center, Lower, Upper float64
+	// MR holds the moving ranges: MR[i] = |x[i+1] - x[i]|.
+	MR []float64
+	// MeanMR is the centre line of the moving-range chart and UpperMR its
+	// upper limit, D4*MeanMR (its lower limit is 0).
+	MeanMR, UpperMR float64
+	// Sigma is the short-term standard deviation that the limits imply,
+	// MeanMR/D2.
+	Sigma float64
+}
+
+// Individuals returns the chart of x, in time order. It needs at least two
+// values, all finite.
+func Individuals(x []float64) (Chart, error) {
+	if len(x) < 2 {
+		return Chart{}, fmt.Errorf("control: an individuals chart needs at least 2 values, got %d", len(x))
+	}
+	var sum float64
+	for i, v := range x {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return Chart{}, fmt.Errorf("control: value %d is %g, not a finite number", i, v)
+		}
+		sum += v
+	}
+	c := Chart{Center: sum / float64(len(x)), MR: make([]float64, len(x)-1)}
+	var sumMR float64
+	for i := 1; i < len(x); i++ {
+		c.MR[i-1] = math.Abs(x[i] - x[i-1])
+		sumMR += c.MR[i-1]
+	}
+	c.MeanMR = sumMR / float64(len(c.MR))
+	c.UpperMR = D4 * c.MeanMR
+	c.Sigma = c.MeanMR / D2
+	c.Lower, c.Upper = c.Center-XFactor*c.MeanMR, c.Center+XFactor*c.MeanMR
+	return c, nil
+}
+
+// Side says where v lies against the individuals chart's limits: +1 above
+// Upper, -1 below Lower, 0 on or within them.
+func (c Chart) Side(v float64) int {
+	switch {
+	case v > c.Upper:
+		return 1
+	case v < c.Lower:
+		return -1
+	}
+	return 0
+}
+
+// JumpOut reports whether the moving range MR[i] (between values i and i+1)
+// lies above the moving-range chart's upper limit.
+func (c Chart) JumpOut(i int) bool { return c.MR[i] > c.UpperMR }

@@ -14,6 +14,7 @@ import (
 	"github.com/ridemodes/ridemodes/compare/batch"
 	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/compare/store"
+	"github.com/ridemodes/ridemodes/plots"
 )
 
 func newBatchCmd() *cobra.Command {
@@ -24,7 +25,8 @@ func newBatchCmd() *cobra.Command {
 		Short: "Analyse a campaign of logs in parallel into a summary, results and a store",
 		Long: `batch runs analyze on every log of a campaign, several at once. Under --out it
 writes results/ (a result JSON per log), summary.csv and summary.jsonl (a row
-per log in sorted-path or manifest order, failures with their message), and
+per log in sorted-path or manifest order, failures with their message) and
+report/index.html (the trend report of the batch, as history writes it), and
 it records every run in a store (campaign.sqlite under --out, or a postgres://
 URL). A failed log never stops the others; Ctrl-C leaves no summary.
 
@@ -74,8 +76,11 @@ is inconclusive (the most severe of the logs).
 			if u, err := url.Parse(target); err == nil && u.Scheme != "" {
 				target = u.Redacted()
 			}
-			fmt.Fprintf(cmd.OutOrStdout(), "logs: %s\nwritten: %s, %s, %s; store: %s\n", b.Tally(), filepath.Join(outDir, batch.SummaryCSV),
-				batch.SummaryJSON, batch.ResultsDir+"/", target)
+			if _, err := plots.WriteTrendReport(filepath.Join(outDir, batch.ReportDir), b.Trend()); err != nil {
+				return err
+			}
+			fmt.Fprintf(cmd.OutOrStdout(), "logs: %s\nwritten in %s: %s, %s, %s/, %s/%s; store: %s\n", b.Tally(), outDir,
+				batch.SummaryCSV, batch.SummaryJSON, batch.ResultsDir, batch.ReportDir, plots.TrendReportFile, target)
 			return batchError(b, filepath.Join(outDir, batch.SummaryCSV))
 		},
 	}

@@ -53,7 +53,7 @@ func TestBatchExitCodes(t *testing.T) {
 	if code != 0 || !strings.Contains(stdout, "1 pass, 0 fail") {
 		t.Errorf("the design car: exit %d, %s%s", code, stdout, errs)
 	}
-	for _, name := range []string{"summary.csv", "summary.jsonl", "campaign.sqlite"} {
+	for _, name := range []string{"summary.csv", "summary.jsonl", "campaign.sqlite", "report/index.html"} {
 		if _, err := os.Stat(filepath.Join(out, name)); err != nil {
 			t.Errorf("no %s under --out: %v", name, err)
 		}

@@ -6,6 +6,7 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"os"
@@ -183,6 +184,9 @@ func TestFolderOfGoodAndBrokenLogs(t *testing.T) {
 	}
 	if n := b.Count(store.VerdictError); n != 3 {
 		t.Errorf("%d failed logs, want 3", n)
+	}
+	if tr := b.Trend(); tr.Car != "example hatchback" || len(tr.Runs) != len(want) || tr.Runs[3].Run != "c-stiff" {
+		t.Errorf("trend view: car %q, %d runs", tr.Car, len(tr.Runs))
 	}
 }
 
@@ -426,5 +430,65 @@ func TestStoreFailureStopsCampaign(t *testing.T) {
 	}
 	if _, err := os.Stat(filepath.Join(out, batch.SummaryCSV)); !errors.Is(err, os.ErrNotExist) {
 		t.Errorf("summary written after the store failed (%v)", err)
+	}
+}
+
+// TestShardsShareOneStore: the two shards of a campaign, run at once with
+// a store handle each (as two processes would be) into one SQLite file,
+// leave every log recorded once, and each shard's summary holds its own
+// logs only.
+func TestShardsShareOneStore(t *testing.T) {
+	logDir, setup := campaignFolder(t)
+	c, err := batch.Expand([]string{logDir}, setup, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	target := filepath.Join(dir, "campaign.sqlite")
+	// Created first: store.Open of one new SQLite file by two processes at
+	// once can fail with SQLITE_BUSY while both switch it to WAL.
+	st, err := store.Open(context.Background(), target)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st.Close()
+	errs := make(chan error, 2)
+	for i := 1; i <= 2; i++ {
+		go func() {
+			st, err := store.Open(context.Background(), target)
+			if err != nil {
+				errs <- err
+				return
+			}
+			defer st.Close()
+			part := c.Select(batch.Shard{Index: i, Count: 2})
+			b, err := batch.Run(context.Background(), part, batch.Options{Out: filepath.Join(dir, strconv.Itoa(i)), Store: st,
+				Job: job.Options{ToolVersion: "test"}})
+			if err == nil && len(b.Rows) != 3 {
+				err = fmt.Errorf("shard %d/2: %d rows, want 3", i, len(b.Rows))
+			}
+			errs <- err
+		}()
+	}
+	for range 2 {
+		if err := <-errs; err != nil {
+			t.Fatal(err)
+		}
+	}
+	if st, err = store.Open(context.Background(), target); err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	runs, err := st.Runs(context.Background(), store.Filter{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, r := range runs {
+		names = append(names, r.Run)
+	}
+	slices.Sort(names)
+	if want := []string{"a-design", "b-design", "bad-cell", "c-stiff", "drop-as-rig", "empty"}; !slices.Equal(names, want) {
+		t.Errorf("runs in the store %v, want %v", names, want)
 	}
 }

@@ -17,12 +17,15 @@ import (
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/compare/store"
+	"github.com/ridemodes/ridemodes/compare/trend"
 	"github.com/ridemodes/ridemodes/identify"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
-// Files and folders that Run writes under Options.Out.
+// Files and folders that Run writes under Options.Out; ReportDir is the
+// batch report's folder (written by package plots from Batch.Trend).
 const (
+	ReportDir   = "report"
 	ResultsDir  = "results"
 	SummaryCSV  = "summary.csv"
 	SummaryJSON = "summary.jsonl"
@@ -56,6 +59,8 @@ type Row struct {
 	// time, verdict (store.VerdictError for a failed analysis), error
 	// message, result (nil for a failed analysis) and metadata. A log that
 	// cannot be read has no content hash and is keyed by its path instead.
+	// AnalysedAt is the campaign's start, the same for all its runs, so that
+	// a store orders them by run name, not by which worker finished first.
 	Record store.Run
 }
 
@@ -74,6 +79,22 @@ func (b *Batch) Count(verdict string) int {
 		}
 	}
 	return n
+}
+
+// Trend is the trend view of the campaign's runs in its order (see
+// package trend): the view of the batch report.
+func (b *Batch) Trend() *trend.Campaign {
+	runs := make([]store.Run, len(b.Rows))
+	cars := map[string]bool{}
+	for i := range b.Rows {
+		runs[i] = b.Rows[i].Record
+		cars[runs[i].Car] = true
+	}
+	car := "" // several cars
+	if len(cars) == 1 {
+		car = runs[0].Car
+	}
+	return trend.Build(car, runs)
 }
 
 // Tally counts the rows by verdict: "2 pass, 1 fail, 0 inconclusive,
@@ -122,6 +143,7 @@ func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 	g, gctx := errgroup.WithContext(rctx)
 	g.SetLimit(workers)
 	records, recorded := recorder(rctx, stop, o.Store, workers)
+	start := time.Now().UTC()
 	var (
 		mu   sync.Mutex
 		done int
@@ -131,7 +153,7 @@ func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 			break
 		}
 		g.Go(func() error {
-			row, err := analyse(gctx, c, c.Items[i], o)
+			row, err := analyse(gctx, c, c.Items[i], start, o)
 			if err != nil {
 				return err
 			}
@@ -191,10 +213,10 @@ func recorder(ctx context.Context, stop context.CancelCauseFunc, st *store.Store
 }
 
 // analyse runs one item and writes its result JSON.
-func analyse(ctx context.Context, c *Campaign, it Item, o Options) (Row, error) {
+func analyse(ctx context.Context, c *Campaign, it Item, at time.Time, o Options) (Row, error) {
 	sf := c.setups[it.Setup]
 	row := Row{Item: it, Record: store.Run{LogPath: it.Log, SetupSHA256: sf.sha256, Car: it.Car, Run: it.Run,
-		ToolVersion: o.Job.ToolVersion, Meta: map[string]string{}}}
+		ToolVersion: o.Job.ToolVersion, AnalysedAt: at, Meta: map[string]string{}}}
 	for i, name := range c.MetaColumns {
 		row.Record.Meta[name] = it.Meta[i]
 	}
@@ -208,7 +230,7 @@ func analyse(ctx context.Context, c *Campaign, it Item, o Options) (Row, error) 
 		return Row{}, ctx.Err()
 	}
 	rec := &row.Record
-	rec.AnalysedAt, rec.Test = time.Now().UTC(), row.Test
+	rec.Test = row.Test
 	if err != nil {
 		rec.Verdict, rec.Error = store.VerdictError, err.Error()
 		if rec.LogSHA256, err = ingest.FileSHA256(it.Log); err != nil {

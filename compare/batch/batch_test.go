@@ -492,3 +492,19 @@ func TestShardsShareOneStore(t *testing.T) {
 		t.Errorf("runs in the store %v, want %v", names, want)
 	}
 }
+
+// TestHandMadeCampaign: a campaign built in code, not by Expand or
+// ReadManifest, has its setups loaded by Run; one that does not load stops
+// the campaign before any log is analysed.
+func TestHandMadeCampaign(t *testing.T) {
+	logDir, setup := campaignFolder(t)
+	c := &batch.Campaign{Items: []batch.Item{{Log: filepath.Join(logDir, "a-design.csv"), Setup: setup, Car: "HX2", Run: "1"}}}
+	b, err := batch.Run(context.Background(), c, batch.Options{Out: filepath.Join(t.TempDir(), "out")})
+	if err != nil || len(b.Rows) != 1 || b.Rows[0].Record.Verdict != compare.StatusPass {
+		t.Fatalf("hand-made campaign: %v, %+v", err, b)
+	}
+	c.Items[0].Setup = filepath.Join(logDir, "notes.txt")
+	if _, err := batch.Run(context.Background(), c, batch.Options{Out: filepath.Join(t.TempDir(), "out")}); err == nil {
+		t.Errorf("a setup that does not load: no error")
+	}
+}

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"maps"
 	"os"
 	"path/filepath"
 	"slices"
@@ -150,6 +151,35 @@ func csvFiles(dir string) ([]string, error) {
 		}
 	}
 	return logs, nil
+}
+
+// setupLoadError is a setup that cannot be loaded, at its first item.
+type setupLoadError struct {
+	item int
+	err  error
+}
+
+func (e *setupLoadError) Error() string { return e.err.Error() }
+func (e *setupLoadError) Unwrap() error { return e.err }
+
+// loadSetups returns the setups that items name: those in loaded (which
+// it does not change), and the others read and hashed once each.
+func loadSetups(loaded map[string]*setupFile, items []Item) (map[string]*setupFile, error) {
+	setups := maps.Clone(loaded)
+	if setups == nil {
+		setups = map[string]*setupFile{}
+	}
+	for i, it := range items {
+		if _, ok := setups[it.Setup]; ok {
+			continue
+		}
+		sf, err := loadSetup(it.Setup)
+		if err != nil {
+			return nil, &setupLoadError{i, err}
+		}
+		setups[it.Setup] = sf
+	}
+	return setups, nil
 }
 
 // loadSetup reads a setup and hashes its content.

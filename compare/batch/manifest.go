@@ -69,7 +69,6 @@ func ReadManifest(path, test string) (*Campaign, error) {
 		return nil, err
 	}
 	c.Manifest = path
-	c.setups = map[string]*setupFile{}
 	dir := filepath.Dir(path)
 	for i := range c.Items {
 		it := &c.Items[i]
@@ -77,14 +76,12 @@ func ReadManifest(path, test string) (*Campaign, error) {
 		if it.Test == "" {
 			it.Test = test
 		}
-		if _, ok := c.setups[it.Setup]; ok {
-			continue
-		}
-		sf, err := loadSetup(it.Setup)
-		if err != nil {
-			return nil, &ManifestError{Path: path, Line: it.Line, Column: it.setupColumn, Msg: "setup " + it.Setup, Err: err}
-		}
-		c.setups[it.Setup] = sf
+	}
+	if c.setups, err = loadSetups(nil, c.Items); err != nil {
+		var se *setupLoadError
+		errors.As(err, &se)
+		it := c.Items[se.item]
+		return nil, &ManifestError{Path: path, Line: it.Line, Column: it.setupColumn, Msg: "setup " + it.Setup, Err: se.err}
 	}
 	return c, nil
 }

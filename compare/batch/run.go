@@ -130,6 +130,10 @@ func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 	if err := guardInputs(c, o.Out); err != nil {
 		return nil, err
 	}
+	setups, err := loadSetups(c.setups, c.Items) // a campaign made by hand has none loaded
+	if err != nil {
+		return nil, err
+	}
 	if err := os.MkdirAll(filepath.Join(o.Out, ResultsDir), 0o755); err != nil {
 		return nil, err
 	}
@@ -153,7 +157,7 @@ func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 			break
 		}
 		g.Go(func() error {
-			row, err := analyse(gctx, c, c.Items[i], start, o)
+			row, err := analyse(gctx, setups[c.Items[i].Setup], c, c.Items[i], start, o)
 			if err != nil {
 				return err
 			}
@@ -170,7 +174,7 @@ func Run(ctx context.Context, c *Campaign, o Options) (*Batch, error) {
 			return nil
 		})
 	}
-	err := g.Wait()
+	err = g.Wait()
 	if records != nil {
 		close(records)
 		if rerr := <-recorded; rerr != nil {
@@ -213,8 +217,7 @@ func recorder(ctx context.Context, stop context.CancelCauseFunc, st *store.Store
 }
 
 // analyse runs one item and writes its result JSON.
-func analyse(ctx context.Context, c *Campaign, it Item, at time.Time, o Options) (Row, error) {
-	sf := c.setups[it.Setup]
+func analyse(ctx context.Context, sf *setupFile, c *Campaign, it Item, at time.Time, o Options) (Row, error) {
 	row := Row{Item: it, Record: store.Run{LogPath: it.Log, SetupSHA256: sf.sha256, Car: it.Car, Run: it.Run,
 		ToolVersion: o.Job.ToolVersion, AnalysedAt: at, Meta: map[string]string{}}}
 	for i, name := range c.MetaColumns {

@@ -38,7 +38,7 @@ func ChooseShard(text string, getenv func(string) string) (s Shard, from string,
 		return ShardFromEnv(getenv)
 	}
 	s, err = ParseShard(text)
-	return s, "--shard " + text, err
+	return s, "--shard", err
 }
 
 // Scheduler index variables that ShardFromEnv reads.

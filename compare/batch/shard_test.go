@@ -95,7 +95,7 @@ func TestShardFromEnv(t *testing.T) {
 	}
 	// The flag wins over the variables.
 	env := map[string]string{"JOB_COMPLETION_INDEX": "0", "RIDEMODES_SHARD_COUNT": "4"}
-	if s, from, err := batch.ChooseShard("2/3", func(k string) string { return env[k] }); s != (batch.Shard{Index: 2, Count: 3}) || from != "--shard 2/3" || err != nil {
+	if s, from, err := batch.ChooseShard("2/3", func(k string) string { return env[k] }); s != (batch.Shard{Index: 2, Count: 3}) || from != "--shard" || err != nil {
 		t.Errorf("--shard 2/3 with a Job's index: %v from %q, %v", s, from, err)
 	}
 	if s, _, err := batch.ChooseShard("", func(k string) string { return env[k] }); s != (batch.Shard{Index: 1, Count: 4}) || err != nil {

@@ -31,11 +31,15 @@
 // PNG, CSS inline, no external URLs) and each figure as its own PNG file
 // into a report directory: frf.png, mode-indicator.png, stabilisation.png,
 // mode-shapes.png and time-history.png, for the figures whose inputs are
-// given. Every file is written to a temporary file in the
-// same folder and then renamed, so a failure leaves nothing behind.
+// given. WriteTrendReport writes a campaign's trend report the same way:
+// index.html and a figure per followed quantity, trend-QUANTITY.png
+// (TrendFigure: values with ± 2 sd bars, design values, individuals and
+// moving-range control charts). Every file is written to a temporary file
+// in the same folder and then renamed, so a failure leaves nothing behind.
 //
 // Place in the flow ingest -> identify -> compare -> plots -> cmd: the plots
 // layer. It may import ingest (the atomic file write, sensors), identify
 // (the route data behind the figures), compare and compare/job (the
-// outcome of one analysed log), never cmd.
+// outcome of one analysed log), compare/trend and compare/store (a
+// campaign's runs), never cmd.
 package plots

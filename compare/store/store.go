@@ -34,6 +34,16 @@ type Store struct {
 // postgres:// or postgresql:// URL is a PostgreSQL server (jackc/pgx/v5 via its
 // database/sql driver "pgx" from github.com/jackc/pgx/v5/stdlib).
 func Open(ctx context.Context, target string) (*Store, error) {
+	return open(ctx, target, true)
+}
+
+// OpenExisting is Open for a reader: an SQLite file must exist already (a
+// mistyped path is an error, not a new empty store).
+func OpenExisting(ctx context.Context, target string) (*Store, error) {
+	return open(ctx, target, false)
+}
+
+func open(ctx context.Context, target string, create bool) (*Store, error) {
 	d, err := dialectFor(target)
 	if err != nil {
 		return nil, err
@@ -42,6 +52,9 @@ func Open(ctx context.Context, target string) (*Store, error) {
 	if d.name == "sqlite" {
 		if err := checkFilePath(target); err != nil {
 			return nil, err
+		}
+		if _, err := os.Stat(target); !create && err != nil {
+			return nil, fmt.Errorf("store %s does not exist: record runs into it first (analyze --store, batch --store)", target)
 		}
 	} else if u, err := url.Parse(target); err == nil {
 		where = u.Redacted()
@@ -247,6 +260,24 @@ VALUES (?, ?, ?, ?, ?, ?, ?)`,
 		}
 	}
 	return nil
+}
+
+// Cars returns the cars of the store's runs, sorted.
+func (s *Store) Cars(ctx context.Context) ([]string, error) {
+	rows, err := s.db.QueryContext(ctx, "SELECT DISTINCT car FROM runs ORDER BY car")
+	if err != nil {
+		return nil, fmt.Errorf("store: reading cars: %w", err)
+	}
+	defer rows.Close()
+	var cars []string
+	for rows.Next() {
+		var c string
+		if err := rows.Scan(&c); err != nil {
+			return nil, fmt.Errorf("store: reading cars: %w", err)
+		}
+		cars = append(cars, c)
+	}
+	return cars, rows.Err()
 }
 
 // Filter selects runs; zero fields select all.

@@ -3,7 +3,9 @@ package store_test
 import (
 	"bytes"
 	"context"
+	"crypto/sha256"
 	"database/sql"
+	"encoding/hex"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -436,5 +438,40 @@ func TestBadVerdictRefused(t *testing.T) {
 	r.Verdict = "ok"
 	if err := s.Record(context.Background(), r); err == nil || !strings.Contains(err.Error(), "inconclusive") {
 		t.Errorf("Record with verdict ok: %v", err)
+	}
+}
+
+// TestRecordResultPooled: analyze --store of a pooled result (several logs,
+// no single log) names the run after its logs joined by "+", keeps their
+// paths joined by ";" and hashes their hashes; the car falls back to the
+// setup file's name.
+func TestRecordResultPooled(t *testing.T) {
+	ctx := context.Background()
+	path := filepath.Join(t.TempDir(), "campaign.sqlite")
+	res := result(t)
+	a, b := *res.Log, *res.Log
+	a.Path, a.SHA256 = "logs/drop-1.csv", strings.Repeat("a", 64)
+	b.Path, b.SHA256 = "logs/drop-2.csv", strings.Repeat("b", 64)
+	res.Log = nil
+	res.Runs = []compare.RunJSON{{Log: &a}, {Log: &b}}
+	res.Setup.Path = "setups/hatch.toml"
+	if err := store.RecordResult(ctx, path, "", res); err != nil {
+		t.Fatal(err)
+	}
+	s, err := store.OpenExisting(ctx, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	runs, err := s.Runs(ctx, store.Filter{})
+	if err != nil || len(runs) != 1 {
+		t.Fatalf("runs %v, %v", runs, err)
+	}
+	// The pooled log hash: SHA-256 of the logs' hashes joined by a newline.
+	h := sha256.Sum256([]byte(a.SHA256 + "\n" + b.SHA256))
+	r := runs[0]
+	if r.Run != "drop-1+drop-2" || r.Car != "hatch" || r.LogPath != "logs/drop-1.csv;logs/drop-2.csv" || r.LogSHA256 != hex.EncodeToString(h[:]) ||
+		r.RunKey != store.RunKey(r.LogSHA256, res.Setup.SHA256, res.Tool.Version) {
+		t.Errorf("pooled run %+v", r)
 	}
 }

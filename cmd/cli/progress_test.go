@@ -23,6 +23,9 @@ func TestTerminalProgressSilent(t *testing.T) {
 				t.Errorf("size %d on a %s: a bar on a non-terminal", size, name)
 			}
 			done()
+			step, done := countProgress(w, 10, "analysing")
+			step(3)
+			done()
 		}
 	}
 	if st, _ := f.Stat(); st.Size() != 0 {

@@ -52,11 +52,11 @@ func (e usageError) Error() string { return e.err.Error() }
 func (e usageError) Unwrap() error { return e.err }
 
 // errTargetsFailed is returned after a complete run whose target check failed (exit code 3).
-var errTargetsFailed = errors.New("a target check failed (see the checks above)")
+var errTargetsFailed = errors.New("a target check failed")
 
 // errInconclusive is returned after a complete run with no failed check but
 // an inconclusive one (exit code 4).
-var errInconclusive = errors.New("a target check is inconclusive: the uncertainty reaches across a limit or a mode is flagged (see the checks above)")
+var errInconclusive = errors.New("a target check is inconclusive: the uncertainty reaches across a limit or a mode is flagged")
 
 // verdictError turns a result's verdict into the error that sets its exit code.
 func verdictError(status string) error {
@@ -106,7 +106,7 @@ Start with "ridemodes demo" for the whole job on an invented example car, or
 	root.SetFlagErrorFunc(func(cmd *cobra.Command, err error) error {
 		return usageError{fmt.Errorf("%w (see %s --help)", err, cmd.CommandPath())}
 	})
-	root.AddCommand(newModelCmd(), newSimulateCmd(), newSpectraCmd(), newAnalyzeCmd(), newCompareCmd(), newDemoCmd(), newHistoryCmd())
+	root.AddCommand(newModelCmd(), newSimulateCmd(), newSpectraCmd(), newAnalyzeCmd(), newCompareCmd(), newDemoCmd(), newBatchCmd(), newHistoryCmd())
 	return root
 }
 
@@ -123,7 +123,7 @@ func Execute(args []string, stdout, stderr io.Writer) int {
 	case err == nil:
 		return exitOK
 	case errors.Is(err, context.Canceled):
-		fmt.Fprintln(stderr, "ridemodes: interrupted; no output was written")
+		fmt.Fprintln(stderr, "ridemodes: interrupted; no file was left half-written")
 		return exitInterrupted
 	case errors.Is(err, errTargetsFailed):
 		fmt.Fprintln(stderr, "ridemodes:", err)

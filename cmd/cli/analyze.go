@@ -62,7 +62,7 @@ a check in [targets] failed.
 			if err != nil {
 				return libraryError(err)
 			}
-			printSummary(cmd.OutOrStdout(), out.Result)
+			plots.WriteSummary(cmd.OutOrStdout(), out.Result)
 			if storeTarget != "" {
 				if err := store.RecordResult(cmd.Context(), storeTarget, out.Setup.Vehicle.Name, out.Result); err != nil {
 					return err

@@ -17,6 +17,12 @@ import (
 	"github.com/ridemodes/ridemodes/plots"
 )
 
+// batchFlags are the options of batch.
+type batchFlags struct {
+	setupPath, manifest, test, outDir, target, shardText string
+	workers                                              int
+}
+
 func newBatchCmd() *cobra.Command {
 	var setupPath, manifest, test, outDir, target, shardText string
 	var workers int
@@ -45,43 +51,7 @@ is inconclusive (the most severe of the logs).
   ridemodes batch 'week12/*.csv' --setup car.toml --out week12-results --workers 4
   ridemodes batch --manifest campaign.csv --store postgres://rides@db/campaign --shard 2/8`,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			c, shard, from, err := loadCampaign(args, setupPath, manifest, test, shardText)
-			if err != nil {
-				return err
-			}
-			if from != "" {
-				fmt.Fprintf(cmd.ErrOrStderr(), "shard %s (%s): %d logs\n", shard, from, len(c.Items))
-			}
-			if err := os.MkdirAll(outDir, 0o755); err != nil {
-				return err
-			}
-			target = cmp.Or(target, filepath.Join(outDir, "campaign.sqlite"))
-			st, err := store.Open(cmd.Context(), target)
-			if err != nil {
-				return err
-			}
-			defer st.Close()
-			step, done := countProgress(cmd.ErrOrStderr(), len(c.Items), "analysing logs")
-			b, err := batch.Run(cmd.Context(), c, batch.Options{Out: outDir, Workers: workers, Store: st,
-				Job: job.Options{ToolVersion: version()}, Done: step})
-			done()
-			if err != nil {
-				return err
-			}
-			for _, r := range b.Rows {
-				if r.Record.Error != "" {
-					fmt.Fprintf(cmd.ErrOrStderr(), "failed: %s\n", r.Record.Error)
-				}
-			}
-			if u, err := url.Parse(target); err == nil && u.Scheme != "" {
-				target = u.Redacted()
-			}
-			if _, err := plots.WriteTrendReport(filepath.Join(outDir, batch.ReportDir), b.Trend()); err != nil {
-				return err
-			}
-			fmt.Fprintf(cmd.OutOrStdout(), "logs: %s\nwritten in %s: %s, %s, %s/, %s/%s; store: %s\n", b.Tally(), outDir,
-				batch.SummaryCSV, batch.SummaryJSON, batch.ResultsDir, batch.ReportDir, plots.TrendReportFile, target)
-			return batchError(b, filepath.Join(outDir, batch.SummaryCSV))
+			return runBatch(cmd, args, batchFlags{setupPath, manifest, test, outDir, target, shardText, workers})
 		},
 	}
 	f := cmd.Flags()
@@ -132,4 +102,45 @@ func batchError(b *batch.Batch, summary string) error {
 	default:
 		return fmt.Errorf("%d of %d logs: %w (see %s)", b.Count(w), len(b.Rows), verdictError(w), summary)
 	}
+}
+
+// runBatch analyses the campaign, records it and writes its report.
+func runBatch(cmd *cobra.Command, args []string, bf batchFlags) error {
+	c, shard, from, err := loadCampaign(args, bf.setupPath, bf.manifest, bf.test, bf.shardText)
+	if err != nil {
+		return err
+	}
+	if from != "" {
+		fmt.Fprintf(cmd.ErrOrStderr(), "shard %s (%s): %d logs\n", shard, from, len(c.Items))
+	}
+	if err := os.MkdirAll(bf.outDir, 0o755); err != nil {
+		return err
+	}
+	bf.target = cmp.Or(bf.target, filepath.Join(bf.outDir, "campaign.sqlite"))
+	st, err := store.Open(cmd.Context(), bf.target)
+	if err != nil {
+		return err
+	}
+	defer st.Close()
+	step, done := countProgress(cmd.ErrOrStderr(), len(c.Items), "analysing logs")
+	b, err := batch.Run(cmd.Context(), c, batch.Options{Out: bf.outDir, Workers: bf.workers, Store: st,
+		Job: job.Options{ToolVersion: version()}, Done: step})
+	done()
+	if err != nil {
+		return err
+	}
+	for _, r := range b.Rows {
+		if r.Record.Error != "" {
+			fmt.Fprintf(cmd.ErrOrStderr(), "failed: %s\n", r.Record.Error)
+		}
+	}
+	if u, err := url.Parse(bf.target); err == nil && u.Scheme != "" {
+		bf.target = u.Redacted()
+	}
+	if _, err := plots.WriteTrendReport(filepath.Join(bf.outDir, batch.ReportDir), b.Trend()); err != nil {
+		return err
+	}
+	fmt.Fprintf(cmd.OutOrStdout(), "logs: %s\nwritten in %s: %s, %s, %s/, %s/%s; store: %s\n", b.Tally(), bf.outDir,
+		batch.SummaryCSV, batch.SummaryJSON, batch.ResultsDir, batch.ReportDir, plots.TrendReportFile, bf.target)
+	return batchError(b, filepath.Join(bf.outDir, batch.SummaryCSV))
 }

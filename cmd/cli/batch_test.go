@@ -24,7 +24,7 @@ func batchScenario(t *testing.T) (dir, design string) {
 	writeText(t, design, string(text)+"\n[targets]\nride_rate_tolerance_pct = 12\n")
 	writeText(t, built, strings.Replace(string(text), "rear_rate_n_per_m = 41000", "rear_rate_n_per_m = 57400", 1))
 	for _, c := range []struct{ setup, log string }{{design, "a-good.csv"}, {built, "b-stiff.csv"}} {
-		if code, _, errs := run(t, "simulate", "--setup", c.setup, "--test", "rig", "--duration", "60",
+		if code, _, errs := run(t, "simulate", "--setup", c.setup, "--test", "rig", "--duration", "180",
 			"--noise", "0.02", "--out", filepath.Join(dir, "logs", c.log)); code != 0 {
 			t.Fatalf("simulate: exit %d: %s", code, errs)
 		}

@@ -7,6 +7,7 @@ import (
 
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/ingest"
+	"github.com/ridemodes/ridemodes/plots"
 )
 
 func newCompareCmd() *cobra.Command {
@@ -51,7 +52,7 @@ Exit codes: 0 done; 1 bad data; 2 bad usage; 3 done, but a target failed.`,
 			if err := res.AssessAgainst(setup); err != nil {
 				return fmt.Errorf("%s: %w", modesPath, err)
 			}
-			printSummary(cmd.OutOrStdout(), res)
+			plots.WriteSummary(cmd.OutOrStdout(), res)
 			if jsonPath != "" {
 				data, err := res.Marshal()
 				if err != nil {

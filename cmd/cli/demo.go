@@ -15,6 +15,7 @@ import (
 	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/compare/simulate"
 	"github.com/ridemodes/ridemodes/ingest"
+	"github.com/ridemodes/ridemodes/plots"
 )
 
 // demoFiles is the invented demo scenario: the car's design setup, which
@@ -132,7 +133,7 @@ func runDemo(ctx context.Context, dir string, out io.Writer) error {
 		if err != nil {
 			return err
 		}
-		printSummary(out, res.Result)
+		plots.WriteSummary(out, res.Result)
 		// The demo shows verdicts; its exit code says only that it ran.
 		err = writeOutcome(res, filepath.Join(dir, run.json), filepath.Join(dir, run.report))
 		if err != nil && err != verdictError(res.Verdict) {

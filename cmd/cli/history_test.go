@@ -55,6 +55,26 @@ func TestHistoryCSVOfACar(t *testing.T) {
 	if !strings.Contains(out, "pitch frequency [Hz]") || strings.Contains(out, "coupe") {
 		t.Errorf("history table:\n%s", out)
 	}
+	checkHistoryCSV(t, csvPath, hatch)
+
+	// Mistakes: a store that does not exist is not created; an unknown car
+	// is named with the cars there are.
+	missing := filepath.Join(dir, "nothing.sqlite")
+	if code, _, errs := run(t, "history", "--store", missing); code != 1 || !strings.Contains(errs, "does not exist") {
+		t.Errorf("missing store: exit %d, %s", code, errs)
+	}
+	if _, err := os.Stat(missing); err == nil {
+		t.Error("history created the missing store")
+	}
+	if code, _, errs := run(t, "history", "--store", storePath, "--car", "hatch"); code != 1 || !strings.Contains(errs, "example coupe, example hatchback") {
+		t.Errorf("unknown car: exit %d, %s", code, errs)
+	}
+}
+
+// checkHistoryCSV compares the history CSV of the hatchback with the results
+// it was recorded from (hatch, in the store's run order).
+func checkHistoryCSV(t *testing.T, csvPath string, hatch []string) {
+	t.Helper()
 	f, err := os.Open(csvPath)
 	if err != nil {
 		t.Fatal(err)
@@ -89,18 +109,5 @@ func TestHistoryCSVOfACar(t *testing.T) {
 				t.Errorf("row %d %s = %q, want %v", k+1, c.name, row[col[c.name]], c.want)
 			}
 		}
-	}
-
-	// Mistakes: a store that does not exist is not created; an unknown car
-	// is named with the cars there are.
-	missing := filepath.Join(dir, "nothing.sqlite")
-	if code, _, errs := run(t, "history", "--store", missing); code != 1 || !strings.Contains(errs, "does not exist") {
-		t.Errorf("missing store: exit %d, %s", code, errs)
-	}
-	if _, err := os.Stat(missing); err == nil {
-		t.Error("history created the missing store")
-	}
-	if code, _, errs := run(t, "history", "--store", storePath, "--car", "hatch"); code != 1 || !strings.Contains(errs, "example coupe, example hatchback") {
-		t.Errorf("unknown car: exit %d, %s", code, errs)
 	}
 }

@@ -2,14 +2,12 @@ package cli
 
 import (
 	"fmt"
-	"io"
-	"math"
-	"text/tabwriter"
 
 	"github.com/spf13/cobra"
 
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/ingest"
+	"github.com/ridemodes/ridemodes/plots"
 )
 
 func newModelCmd() *cobra.Command {
@@ -45,7 +43,7 @@ farther from the CG is labelled bounce, the other pitch.`,
 			if err != nil {
 				return fmt.Errorf("%s: %w", setupPath, err)
 			}
-			printModel(cmd.OutOrStdout(), setup, modes, damped, guidance)
+			plots.WriteModel(cmd.OutOrStdout(), setup, modes, damped, guidance)
 			if jsonPath == "" {
 				return nil
 			}
@@ -75,48 +73,4 @@ farther from the CG is labelled bounce, the other pitch.`,
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.MarkFlagFilename("json", "json")
 	return cmd
-}
-
-// nodeWords describes a node position for a reader.
-func nodeWords(nodeM float64) string {
-	switch {
-	case math.IsNaN(nodeM):
-		return "no node (pure heave)"
-	case math.Abs(nodeM) < 0.0005:
-		return "at the CG"
-	case nodeM > 0:
-		return fmt.Sprintf("%.3f m ahead of the CG", nodeM)
-	default:
-		return fmt.Sprintf("%.3f m behind the CG", -nodeM)
-	}
-}
-
-// fmtOpt formats a value that may be missing (NaN).
-func fmtOpt(format string, x float64) string {
-	if math.IsNaN(x) {
-		return "-"
-	}
-	return fmt.Sprintf(format, x)
-}
-
-func printModel(w io.Writer, setup *ingest.Setup, modes []compare.Mode, damped bool, guidance []compare.Check) {
-	name := setup.Vehicle.Name
-	if name == "" {
-		name = "vehicle"
-	}
-	fmt.Fprintf(w, "Design model of %s (%s), from the %s\n\n", name, setup.Path, compare.ModelMethod(damped))
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "mode\tf_n [Hz]\tomega_n [rad/s]\tzeta [-]\tf_d [Hz]\tpitch/bounce [rad/m]\tnode [m]\tnode lies")
-	for _, m := range modes {
-		fmt.Fprintf(tw, "%s\t%.3f\t%.3f\t%.3f\t%.3f\t%s\t%s\t%s\n", m.Label, m.NaturalFrequencyHz,
-			2*math.Pi*m.NaturalFrequencyHz, m.DampingRatio, m.DampedFrequencyHz,
-			fmtOpt("%+.4f", m.PitchPerBounceRadPerM), fmtOpt("%+.3f", m.NodeM), nodeWords(m.NodeM))
-	}
-	tw.Flush()
-	fmt.Fprintln(w, "\nRide rates (per axle, at the wheel centre)")
-	for _, r := range compare.RideRates(setup.Vehicle) {
-		fmt.Fprintf(w, "  %s\n", r)
-	}
-	printChecks(w, "Ride guidance (design stage; guidance, never a verdict)", guidance)
-	fmt.Fprintln(w, "\nAxes: ISO 8855 (x forward, z up, pitch positive nose-down); positions from the CG, positive forward.")
 }

@@ -1,17 +1,18 @@
 package cli
 
 import (
-	"context"
 	"embed"
 	"errors"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
+	"runtime"
 
 	"github.com/spf13/cobra"
 
 	"github.com/ridemodes/ridemodes/compare"
+	"github.com/ridemodes/ridemodes/compare/batch"
 	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/compare/simulate"
 	"github.com/ridemodes/ridemodes/ingest"
@@ -30,6 +31,7 @@ var demoFiles embed.FS
 // the same numbers on every machine.
 const (
 	demoRigDurationS = 300
+	demoCampaignRunS = 180
 	demoRigNoise     = 0.05
 	demoDropNoise    = 0.02
 	demoSeed         = 20261201
@@ -56,7 +58,7 @@ in its output and results (analyze exits 3 or 4 on them).
   ridemodes demo --out /tmp/ridemodes-demo`,
 		Args: usageArgs(cobra.NoArgs),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			return runDemo(cmd.Context(), outDir, cmd.OutOrStdout())
+			return runDemo(cmd, outDir)
 		},
 	}
 	cmd.Flags().StringVar(&outDir, "out", "ridemodes-demo", "folder to create for the demo (must be new or empty)")
@@ -79,7 +81,8 @@ func prepareDemoDir(dir string) error {
 	return nil
 }
 
-func runDemo(ctx context.Context, dir string, out io.Writer) error {
+func runDemo(cmd *cobra.Command, dir string) error {
+	ctx, out := cmd.Context(), cmd.OutOrStdout()
 	if err := prepareDemoDir(dir); err != nil {
 		return err
 	}
@@ -111,9 +114,7 @@ func runDemo(ctx context.Context, dir string, out io.Writer) error {
 		return err
 	}
 	for name, log := range map[string]*simulate.Log{"rig.csv": rig, "drop.csv": drop} {
-		if err := ingest.WriteAtomic(filepath.Join(dir, name), func(w io.Writer) error {
-			return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-		}); err != nil {
+		if err := writeSimulated(filepath.Join(dir, name), log); err != nil {
 			return err
 		}
 	}
@@ -140,7 +141,57 @@ func runDemo(ctx context.Context, dir string, out io.Writer) error {
 			return err
 		}
 	}
-	fmt.Fprintf(out, "\nReports: %s and %s\n", filepath.Join(dir, "report", "report.html"),
-		filepath.Join(dir, "drop-report", "report.html"))
+	if err := demoCampaign(cmd, dir, car, built); err != nil {
+		return err
+	}
+	fmt.Fprintf(out, "\nReports: %s, %s and the campaign's trend report %s\n", filepath.Join(dir, "report", "report.html"),
+		filepath.Join(dir, "drop-report", "report.html"), filepath.Join(dir, "campaign", batch.ReportDir, plots.TrendReportFile))
+	return nil
+}
+
+// writeSimulated writes a simulated log as CSV.
+func writeSimulated(path string, log *simulate.Log) error {
+	return ingest.WriteAtomic(path, func(w io.Writer) error {
+		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
+	})
+}
+
+// demoCampaign simulates six shorter rig runs of the car over two weeks,
+// the last three after its rear springs were changed back to the design
+// rate, writes their manifest and runs batch on it: the store and the trend
+// report then show the step.
+func demoCampaign(cmd *cobra.Command, dir string, car compare.Vehicle, built *ingest.Setup) error {
+	design, err := ingest.LoadSetup(filepath.Join(dir, "design.toml"))
+	if err != nil {
+		return err
+	}
+	manifest := "log,setup,car,run,test,date,notes\n"
+	for i := range 6 {
+		v, note := car, "as built"
+		if i >= 3 {
+			v.RearRateNPerM, note = design.Vehicle.RearRateNPerM, "after the rear spring change"
+		}
+		o := simulate.Defaults("rig")
+		o.DurationS, o.NoiseFraction, o.Seed = demoCampaignRunS, demoRigNoise, demoSeed+uint64(i)+1
+		log, err := simulate.Rig(v, built.Sensors, built.Inputs, o)
+		if err != nil {
+			return err
+		}
+		name := fmt.Sprintf("run-%d.csv", i+1)
+		if err := writeSimulated(filepath.Join(dir, name), log); err != nil {
+			return err
+		}
+		manifest += fmt.Sprintf("%s,design.toml,HX-2 mule 3,%d,rig,2026-03-%02d,%s\n", name, i+1, 2+2*i, note)
+	}
+	path := filepath.Join(dir, "campaign.csv")
+	if err := ingest.WriteFileAtomic(path, []byte(manifest)); err != nil {
+		return err
+	}
+	fmt.Fprintf(cmd.OutOrStdout(), "\n=== Campaign: six rig runs, the last three after a rear spring change: ridemodes batch --manifest %s --out %s\n\n",
+		path, filepath.Join(dir, "campaign"))
+	err = runBatch(cmd, nil, batchFlags{manifest: path, outDir: filepath.Join(dir, "campaign"), workers: runtime.NumCPU()})
+	if err != nil && !errors.Is(err, errTargetsFailed) && !errors.Is(err, errInconclusive) {
+		return err
+	}
 	return nil
 }

@@ -67,15 +67,37 @@ func open(ctx context.Context, target string, create bool) (*Store, error) {
 	if err != nil {
 		return nil, fmt.Errorf("store %s: %w", where, err)
 	}
-	if err := db.PingContext(ctx); err != nil {
+	// Two processes opening a new SQLite file at once (the shards of a
+	// batch) can meet SQLITE_BUSY while one switches the file to WAL, which
+	// SQLite's busy handler does not wait for: retry, for as long as a
+	// writer would wait.
+	deadline := time.Now().Add(busyTimeoutMs * time.Millisecond)
+	for pause := 10 * time.Millisecond; ; pause = min(2*pause, 500*time.Millisecond) {
+		err = db.PingContext(ctx)
+		if err == nil {
+			err = migrate(ctx, db, d, ms)
+		}
+		if err == nil || !busy(err) || time.Now().After(deadline) {
+			break
+		}
+		select {
+		case <-ctx.Done():
+			err = ctx.Err()
+		case <-time.After(pause):
+			continue
+		}
+		break
+	}
+	if err != nil {
 		db.Close()
 		return nil, fmt.Errorf("store %s: cannot open it: %w", where, err)
 	}
-	if err := migrate(ctx, db, d, ms); err != nil {
-		db.Close()
-		return nil, fmt.Errorf("store %s: %w", where, err)
-	}
 	return &Store{db: db, d: d}, nil
+}
+
+// busy reports whether err is SQLite's "another connection holds the lock".
+func busy(err error) bool {
+	return strings.Contains(err.Error(), "SQLITE_BUSY") || strings.Contains(err.Error(), "database is locked")
 }
 
 // checkFilePath refuses an SQLite target whose folder is missing or that is

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -31,12 +30,17 @@ type DecayData struct {
 
 // Time history figure size, vg units.
 const (
-	decayWidth  = 7 * vg.Inch
-	decayHeight = 3.4 * vg.Inch
+	decayWidth  = 7.5 * vg.Inch
+	decayHeight = 3.2 * vg.Inch
+	// decayMargin is the part of the fit window's length shown before and
+	// after it.
+	decayMargin = 0.25
 )
 
 // DecayFigure draws the measured signals against time with the fitted
-// curves overlaid and the fit window shaded.
+// curves dashed in the colours of their signals, zoomed on the fit window
+// (with a quarter of its length shown on each side) and the window shaded;
+// without a window it shows the whole record.
 func DecayFigure(d DecayData) (*Figure, error) {
 	if len(d.Measured) == 0 {
 		return nil, &SeriesError{Series: "time history signals", Index: -1, Problem: "has no signal"}
@@ -57,46 +61,75 @@ func DecayFigure(d DecayData) (*Figure, error) {
 		unit = "m/s²"
 	}
 	p := newPanel("time history", "time [s]", fmt.Sprintf("vertical acceleration [%s]", unit))
-	p.X.Min, p.X.Max = d.TimeS[0], d.TimeS[len(d.TimeS)-1]
-	if d.WindowEndS > d.WindowStartS {
-		text := plot.New().Title.TextStyle
-		text.Font.Size = vg.Points(8.5)
-		text.Color = inkDark
-		text.XAlign, text.YAlign = draw.XLeft, draw.YBottom
-		p.Add(&xSpan{from: d.WindowStartS, to: d.WindowEndS, fill: tint(palette[5], 0x1c), text: text,
+	from, to := d.TimeS[0], d.TimeS[len(d.TimeS)-1]
+	if w := d.WindowEndS - d.WindowStartS; w > 0 {
+		from, to = math.Max(from, d.WindowStartS-decayMargin*w), math.Min(to, d.WindowEndS+decayMargin*w)
+		text := textStyle(8.5, inkDark)
+		text.XAlign, text.YAlign = draw.XLeft, draw.YTop
+		p.Add(&xSpan{from: d.WindowStartS, to: d.WindowEndS, fill: tint(palette[4], 0x22), text: text,
 			label: fmt.Sprintf("fit window %.3g-%.3g s", d.WindowStartS, d.WindowEndS)})
 	}
-	for i, s := range d.Measured {
-		l, err := plotter.NewLine(xyOf(d.TimeS, s.Values))
-		if err != nil {
-			return nil, fmt.Errorf("plots: time history %q: %w", s.Name, err)
-		}
-		l.LineStyle = seriesLine(i)
-		l.Width = vg.Points(1)
-		p.Add(l)
-		p.Legend.Add(s.Name, l)
+	if from >= to {
+		from, to = d.TimeS[0], d.TimeS[len(d.TimeS)-1]
 	}
-	for i, s := range d.Fitted {
-		l, err := plotter.NewLine(xyOf(d.FitTimeS, s.Values))
-		if err != nil {
-			return nil, fmt.Errorf("plots: time history fit %q: %w", s.Name, err)
-		}
-		l.LineStyle = fitLine(i)
-		l.Width = vg.Points(1.6)
-		p.Add(l)
-		p.Legend.Add(s.Name, l)
+	if from == to {
+		from, to = from-0.5, to+0.5
 	}
+	p.X.Min, p.X.Max = from, to
 	lo, hi := math.Inf(1), math.Inf(-1)
-	for _, group := range [][]Series{d.Measured, d.Fitted} {
-		for _, s := range group {
-			for _, v := range s.Values {
-				lo, hi = math.Min(lo, v), math.Max(hi, v)
+	for _, group := range []struct {
+		t      []float64
+		series []Series
+		fit    bool
+	}{{d.TimeS, d.Measured, false}, {d.FitTimeS, d.Fitted, true}} {
+		for i, s := range group.series {
+			xy := visible(group.t, s.Values, from, to)
+			if len(xy) == 0 {
+				continue
 			}
+			for _, pt := range xy {
+				lo, hi = math.Min(lo, pt.Y), math.Max(hi, pt.Y)
+			}
+			if group.fit {
+				l, err := plotter.NewLine(xy)
+				if err != nil {
+					return nil, fmt.Errorf("plots: time history fit %q: %w", s.Name, err)
+				}
+				l.LineStyle = fitLine(i)
+				p.Add(l)
+				p.Legend.Add(s.Name, l)
+				continue
+			}
+			ls := seriesLine(i)
+			ls.Width = vg.Points(1)
+			thumbs, err := markedLine(p, xy, ls, seriesGlyph(i), false, i, len(d.Measured))
+			if err != nil {
+				return nil, fmt.Errorf("plots: time history %q: %w", s.Name, err)
+			}
+			p.Legend.Add(s.Name, thumbs...)
 		}
 	}
-	// Head room above the data for the legend.
-	p.Y.Min, p.Y.Max = lo-0.05*(hi-lo), hi+0.35*(hi-lo)
-	return newFigure(decayWidth, decayHeight, p), nil
+	if lo > hi {
+		lo, hi = -1, 1
+	}
+	if lo == hi {
+		lo, hi = lo-1, hi+1
+	}
+	// Head room above the data for the window's label.
+	p.Y.Min, p.Y.Max = lo-0.05*(hi-lo), hi+0.18*(hi-lo)
+	return newFigure(decayWidth, []vg.Length{decayHeight}, p), nil
+}
+
+// visible pairs the samples of ys at times t (equal lengths) that lie in
+// [from, to].
+func visible(t, ys []float64, from, to float64) plotter.XYs {
+	var xy plotter.XYs
+	for k, tk := range t {
+		if tk >= from && tk <= to {
+			xy = append(xy, plotter.XY{X: tk, Y: ys[k]})
+		}
+	}
+	return xy
 }
 
 // checkTimes checks a time base and the series on it.

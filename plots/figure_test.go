@@ -30,6 +30,7 @@ func figureCases() []struct {
 	}{
 		{"frf", func() (*Figure, error) { return FRFFigure(synthFRF(false)) }},
 		{"frf_log", func() (*Figure, error) { return FRFFigure(synthFRF(true)) }},
+		{"frf_fourpost", func() (*Figure, error) { return FRFFigure(fourPostFRF()) }},
 		{"shapes", func() (*Figure, error) { return ShapeFigure(synthShapes()) }},
 		{"indicator", func() (*Figure, error) { return IndicatorFigure(synthIndicator()) }},
 		{"stabilisation", func() (*Figure, error) { return StabFigure(synthStab()) }},

@@ -33,7 +33,7 @@ type IndicatorData struct {
 
 // Mode indicator figure size, vg units.
 const (
-	indicatorWidth  = 7 * vg.Inch
+	indicatorWidth  = 7.5 * vg.Inch
 	indicatorHeight = 3.6 * vg.Inch
 )
 
@@ -68,13 +68,11 @@ func IndicatorFigure(d IndicatorData) (*Figure, error) {
 	freqAxis(p, freqHz, d.LogFrequency)
 	setLog(&p.Y)
 	for i, s := range d.Values {
-		l, err := plotter.NewLine(xyOf(freqHz, s.Values[first:]))
+		thumbs, err := markedLine(p, xyOf(freqHz, s.Values[first:]), seriesLine(i), seriesGlyph(i), d.LogFrequency, i, len(d.Values))
 		if err != nil {
 			return nil, fmt.Errorf("plots: indicator singular value %q: %w", s.Name, err)
 		}
-		l.LineStyle = seriesLine(i)
-		p.Add(l)
-		p.Legend.Add(s.Name, l)
+		p.Legend.Add(s.Name, thumbs...)
 	}
 	if d.PeakSeries != nil && len(d.PeakSeries) != len(d.Peaks) {
 		return nil, &SeriesError{Series: "indicator peak series", Index: -1, Problem: fmt.Sprintf(
@@ -104,7 +102,7 @@ func IndicatorFigure(d IndicatorData) (*Figure, error) {
 			if err != nil {
 				return nil, fmt.Errorf("plots: indicator peaks: %w", err)
 			}
-			sc.GlyphStyle = draw.GlyphStyle{Color: inkDark, Radius: vg.Points(4), Shape: draw.RingGlyph{}}
+			sc.GlyphStyle = draw.GlyphStyle{Color: inkDark, Radius: vg.Points(5), Shape: draw.RingGlyph{}}
 			p.Add(sc)
 			p.Legend.Add("picked peak", sc)
 		}
@@ -116,6 +114,7 @@ func IndicatorFigure(d IndicatorData) (*Figure, error) {
 			lo, hi = math.Min(lo, v), math.Max(hi, v)
 		}
 	}
-	p.Y.Min, p.Y.Max = lo/1.4, hi*1.4
-	return newFigure(indicatorWidth, indicatorHeight, p), nil
+	p.Y.Min = lo / 1.4
+	p.Y.Max = logHeadroom(p.Y.Min, hi*1.2, labelBand)
+	return newFigure(indicatorWidth, []vg.Length{indicatorHeight}, p), nil
 }

@@ -64,10 +64,12 @@ next:
 	return bins
 }
 
+// markers marks each mode at its natural frequency, labelled with its name
+// and frequency.
 func markers(ms []compare.ModeJSON) []Marker {
 	var out []Marker
 	for _, m := range ms {
-		out = append(out, Marker{Label: m.Label, FreqHz: m.NaturalFrequencyHz})
+		out = append(out, Marker{Label: fmt.Sprintf("%s %.3f Hz", m.Label, m.NaturalFrequencyHz), FreqHz: m.NaturalFrequencyHz})
 	}
 	return out
 }
@@ -78,13 +80,13 @@ func frfData(rig *identify.RigDetail, modes []compare.ModeJSON) *FRFData {
 	set, fit := rig.Set, rig.Fit
 	cmif := modal.Indicator(set)
 	bins := usableBins(set, cmif, fit.BandLowHz, fit.BandHighHz)
-	d := &FRFData{MagnitudeUnit: "-", Markers: markers(modes)}
+	d := &FRFData{MagnitudeUnit: "-", Markers: markers(modes), LogFrequency: true}
 	for _, k := range bins {
 		d.FreqHz = append(d.FreqHz, set.FreqHz[k])
 	}
 	for o := range set.H {
 		for i := range set.H[o] {
-			c := FRFCurve{Name: set.OutputNames[o] + " / " + set.InputNames[i]}
+			c := FRFCurve{Name: set.OutputNames[o] + " / " + set.InputNames[i], Output: set.OutputNames[o], Input: set.InputNames[i]}
 			for _, k := range bins {
 				h := set.H[o][i][k]
 				mag := cmplx.Abs(h)
@@ -119,7 +121,7 @@ func indicatorData(rig *identify.RigDetail, modes []compare.ModeJSON) (*Indicato
 	set, fit := rig.Set, rig.Fit
 	cmif := modal.Indicator(set)
 	bins := usableBins(set, cmif, fit.BandLowHz, fit.BandHighHz)
-	ind := &IndicatorData{Unit: "-"}
+	ind := &IndicatorData{Unit: "-", LogFrequency: true}
 	for _, k := range bins {
 		ind.FreqHz = append(ind.FreqHz, cmif.FreqHz[k])
 	}
@@ -134,13 +136,13 @@ func indicatorData(rig *identify.RigDetail, modes []compare.ModeJSON) (*Indicato
 		ind.Peaks = append(ind.Peaks, Marker{Label: fmt.Sprintf("peak %.3f Hz", q.PeakHz), FreqHz: q.PeakHz})
 		ind.PeakSeries = append(ind.PeakSeries, q.Curve)
 	}
-	st := &StabData{Selected: markers(modes), IndicatorFreqHz: ind.FreqHz}
+	st := &StabData{Selected: markers(modes), IndicatorFreqHz: ind.FreqHz, LogFrequency: true}
 	if len(ind.Values) > 0 {
 		st.Indicator = ind.Values[0].Values
 	}
 	for _, p := range fit.Stabilisation.Points {
-		if !p.Physical {
-			continue
+		if !p.Physical || !(p.NaturalFrequencyHz > 0) {
+			continue // not a body pole, or not one a log frequency axis can show
 		}
 		status := PoleNew
 		switch p.Status {

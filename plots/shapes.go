@@ -3,6 +3,7 @@ package plots
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -47,8 +48,8 @@ type ShapeData struct {
 
 // Mode shape figure size, vg units.
 const (
-	shapeWidth       = 7 * vg.Inch
-	shapePanelHeight = 2.9 * vg.Inch
+	shapeWidth       = 7.5 * vg.Inch
+	shapePanelHeight = 2.4 * vg.Inch
 	// shapeMargin is the part of the wheelbase shown beyond each axle.
 	shapeMargin = 0.12
 )
@@ -66,14 +67,15 @@ func ShapeFigure(d ShapeData) (*Figure, error) {
 		return nil, &SeriesError{Series: "mode shapes", Index: -1, Problem: "has no mode"}
 	}
 	panels := make([]*plot.Plot, len(d.Modes))
+	heights := make([]vg.Length, len(d.Modes))
 	for i, m := range d.Modes {
 		p, err := shapePanel(d, m)
 		if err != nil {
 			return nil, err
 		}
-		panels[i] = p
+		panels[i], heights[i] = p, shapePanelHeight
 	}
-	return newFigure(shapeWidth, shapePanelHeight, panels...), nil
+	return newFigure(shapeWidth, heights, panels...), nil
 }
 
 // checkGeometry checks the axle distances and sensor positions.
@@ -123,10 +125,7 @@ func shapePanel(d ShapeData, m ShapeMode) (*plot.Plot, error) {
 	p := newPanel(shapeTitle(m), "position s from CG, forward positive [m]", "w(s), scaled [-]")
 	p.X.Min, p.X.Max = sMin, sMax
 	p.X.Tick.Marker = bodyTicks(d.FrontM, d.RearM)
-	// Below w = -1.35 lies a band for the legend (right) and the node
-	// labels (left), clear of the lines.
-	p.Y.Min, p.Y.Max = -2.45, 1.5
-	p.Legend.Top = false
+	p.Y.Min, p.Y.Max = -1.5, 1.5
 
 	if err := addBody(p, d); err != nil {
 		return nil, err
@@ -142,13 +141,16 @@ func shapePanel(d ShapeData, m ShapeMode) (*plot.Plot, error) {
 		if err != nil {
 			return nil, fmt.Errorf("plots: mode %q %s shape: %w", m.Label, l.what, err)
 		}
-		line.LineStyle = seriesLine(i)
-		line.Width = vg.Points(2)
-		p.Add(line)
-		p.Legend.Add(l.what, line)
-		if err := addNode(p, l.what, ppb, sMin, sMax, i); err != nil {
-			return nil, err
+		line.LineStyle = draw.LineStyle{Color: seriesColor(i), Width: vg.Points(2)}
+		if i == 1 {
+			line.Dashes = fitDashes
 		}
+		p.Add(line)
+		text, err := addNode(p, ppb, sMin, sMax, i)
+		if err != nil {
+			return nil, fmt.Errorf("plots: mode %q %s node: %w", m.Label, l.what, err)
+		}
+		p.Legend.Add(l.what+": "+text, line)
 		if i == 0 && m.SensorW != nil {
 			pts := make(plotter.XYs, len(m.SensorW))
 			for k, w := range m.SensorW {
@@ -166,17 +168,17 @@ func shapePanel(d ShapeData, m ShapeMode) (*plot.Plot, error) {
 	return p, nil
 }
 
-// shapeTitle is the panel title: label, frequency and damping of each
-// estimate.
+// shapeTitle is the panel title: label, frequency and damping ratio (ζ)
+// of each estimate.
 func shapeTitle(m ShapeMode) string {
-	title := m.Label
+	var parts []string
 	if m.Measured != nil {
-		title += fmt.Sprintf("; measured %.3g Hz, damping ratio %.2f", m.Measured.FreqHz, m.Measured.DampingRatio)
+		parts = append(parts, fmt.Sprintf("measured %.3g Hz, ζ %.2f", m.Measured.FreqHz, m.Measured.DampingRatio))
 	}
 	if m.Model != nil {
-		title += fmt.Sprintf("; model %.3g Hz, damping ratio %.2f", m.Model.FreqHz, m.Model.DampingRatio)
+		parts = append(parts, fmt.Sprintf("model %.3g Hz, ζ %.2f", m.Model.FreqHz, m.Model.DampingRatio))
 	}
-	return title
+	return m.Label + ": " + strings.Join(parts, "; ")
 }
 
 // bodyTicks labels the position axis at the axles and the CG only, with
@@ -233,36 +235,22 @@ func addBody(p *plot.Plot, d ShapeData) error {
 	return nil
 }
 
-// addNode marks the node of shape i, with pitch per bounce ppb: a glyph on
-// the body line at rest when it lies within [sMin, sMax], and a label in the
-// bottom band that says where it is, with an arrow when it lies beyond the
-// view.
-func addNode(p *plot.Plot, what string, ppb, sMin, sMax float64, i int) error {
+// addNode marks the node of shape i (0 measured, 1 model), with pitch per
+// bounce ppb, by a glyph on the body line at rest when it lies within
+// [sMin, sMax], and returns the words for the legend that say where it is.
+func addNode(p *plot.Plot, ppb, sMin, sMax float64, i int) (string, error) {
 	node := 1 / ppb
-	var text string
 	switch {
 	case ppb == 0:
-		text = fmt.Sprintf("%s: no node (pure bounce)", what)
-	case node < sMin:
-		text = fmt.Sprintf("<- %s node at s = %.3g m, beyond view", what, node)
-	case node > sMax:
-		text = fmt.Sprintf("%s node at s = %.3g m, beyond view ->", what, node)
-	default:
-		text = fmt.Sprintf("%s node (dot) at s = %.3g m", what, node)
-		mark, err := plotter.NewScatter(plotter.XYs{{X: node, Y: 0}})
-		if err != nil {
-			return fmt.Errorf("plots: %s node: %w", what, err)
-		}
-		mark.GlyphStyle = draw.GlyphStyle{Color: seriesColor(i), Radius: vg.Points(4.5 - 1.5*float64(i)), Shape: draw.CircleGlyph{}}
-		p.Add(mark)
+		return "no node (pure bounce)", nil
+	case node < sMin || node > sMax:
+		return fmt.Sprintf("node %.3g m, off the view", node), nil
 	}
-	label, err := plotter.NewLabels(plotter.XYLabels{XYs: plotter.XYs{{X: sMin, Y: -1.65 - 0.35*float64(i)}}, Labels: []string{text}})
+	mark, err := plotter.NewScatter(plotter.XYs{{X: node, Y: 0}})
 	if err != nil {
-		return fmt.Errorf("plots: %s node label: %w", what, err)
+		return "", err
 	}
-	label.TextStyle[0].Font.Size = vg.Points(9)
-	label.TextStyle[0].Color = seriesColor(i)
-	label.Offset = vg.Point{X: vg.Points(4)}
-	p.Add(label)
-	return nil
+	mark.GlyphStyle = draw.GlyphStyle{Color: seriesColor(i), Radius: vg.Points(4.5 - 1.5*float64(i)), Shape: draw.CircleGlyph{}}
+	p.Add(mark)
+	return fmt.Sprintf("node %.3g m (dot)", node), nil
 }

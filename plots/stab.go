@@ -42,11 +42,14 @@ type StabData struct {
 	IndicatorFreqHz, Indicator []float64
 	// Selected are the frequencies finally chosen, drawn as labelled lines.
 	Selected []Marker
+	// LogFrequency puts frequency on a log axis; every pole and indicator
+	// frequency must then be above 0 Hz.
+	LogFrequency bool
 }
 
 // Stabilisation figure size, vg units.
 const (
-	stabWidth  = 7 * vg.Inch
+	stabWidth  = 7.5 * vg.Inch
 	stabHeight = 4 * vg.Inch
 )
 
@@ -85,6 +88,9 @@ func StabFigure(d StabData) (*Figure, error) {
 		if math.IsNaN(pole.FreqHz) || math.IsInf(pole.FreqHz, 0) {
 			return nil, &SeriesError{Series: "stabilisation pole frequency", Index: i, Value: pole.FreqHz, Problem: fmt.Sprintf("is %g, not a finite number", pole.FreqHz)}
 		}
+		if d.LogFrequency && pole.FreqHz <= 0 {
+			return nil, &SeriesError{Series: "stabilisation pole frequency", Index: i, Value: pole.FreqHz, Problem: fmt.Sprintf("is %g, not positive as a log axis needs", pole.FreqHz)}
+		}
 		if !knownStatus(pole.Status) {
 			return nil, &SeriesError{Series: "stabilisation pole status", Index: i, Value: math.NaN(), Problem: fmt.Sprintf("(order %d, %.3g Hz) has status %q: want %q, %q or %q", pole.Order, pole.FreqHz, pole.Status, PoleStable, PoleFrequencyOnly, PoleNew)}
 		}
@@ -93,14 +99,15 @@ func StabFigure(d StabData) (*Figure, error) {
 		minOrder, maxOrder = math.Min(minOrder, o), math.Max(maxOrder, o)
 		minHz, maxHz = math.Min(minHz, pole.FreqHz), math.Max(maxHz, pole.FreqHz)
 	}
-	if err := checkMarkers("stabilisation selected", d.Selected, false); err != nil {
+	if err := checkMarkers("stabilisation selected", d.Selected, d.LogFrequency); err != nil {
 		return nil, err
 	}
 	p := newPanel("stabilisation across model order", "frequency [Hz]", "model order [-]")
 	if maxOrder == minOrder {
 		minOrder, maxOrder = minOrder-1, maxOrder+1
 	}
-	// Head room above the highest order keeps the legend off the poles.
+	// Head room above the highest order keeps the labels of the selected
+	// frequencies off the poles.
 	p.Y.Min, p.Y.Max = minOrder-1, maxOrder+1+0.3*(maxOrder-minOrder)
 	p.Y.Tick.Marker = orderTicks
 	if d.Indicator != nil || d.IndicatorFreqHz != nil {
@@ -123,12 +130,12 @@ func StabFigure(d StabData) (*Figure, error) {
 		p.Add(sc)
 		p.Legend.Add(st.legend, sc)
 	}
-	if minHz == maxHz {
+	if minHz == maxHz && !d.LogFrequency {
 		minHz, maxHz = minHz-0.5, maxHz+0.5
 	}
-	p.X.Min, p.X.Max = minHz, maxHz
+	freqAxis(p, []float64{minHz, maxHz}, d.LogFrequency)
 	p.Add(newVLines(d.Selected, true))
-	return newFigure(stabWidth, stabHeight, p), nil
+	return newFigure(stabWidth, []vg.Length{stabHeight}, p), nil
 }
 
 // orderTicks labels whole model orders in steps of 1, 2 or 5 times a
@@ -173,6 +180,11 @@ func addIndicatorBackdrop(p *plot.Plot, d StabData, minOrder, maxOrder float64) 
 	if err := checkPositive("stabilisation indicator", d.Indicator); err != nil {
 		return 0, 0, err
 	}
+	if d.LogFrequency {
+		if err := checkPositive("stabilisation indicator frequency", d.IndicatorFreqHz); err != nil {
+			return 0, 0, err
+		}
+	}
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, v := range d.Indicator {
 		lo, hi = math.Min(lo, math.Log(v)), math.Max(hi, math.Log(v))
@@ -189,8 +201,8 @@ func addIndicatorBackdrop(p *plot.Plot, d StabData, minOrder, maxOrder float64) 
 	if err != nil {
 		return 0, 0, fmt.Errorf("plots: stabilisation indicator: %w", err)
 	}
-	l.LineStyle = draw.LineStyle{Color: tint(palette[4], 0x90), Width: vg.Points(1.2)}
+	l.LineStyle = draw.LineStyle{Color: inkFaint, Width: vg.Points(1.2)}
 	p.Add(l)
-	p.Legend.Add("mode indicator (log, scaled to the order span)", l)
+	p.Legend.Add("mode indicator (scaled)", l)
 	return d.IndicatorFreqHz[0], d.IndicatorFreqHz[len(d.IndicatorFreqHz)-1], nil
 }

@@ -3,6 +3,7 @@ package plots
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 
 	"gonum.org/v1/plot"
@@ -39,7 +40,7 @@ type TrendData struct {
 
 // Trend figure size, vg units: the X panel, and the MR panel under it.
 const (
-	trendWidth       = 7 * vg.Inch
+	trendWidth       = 7.5 * vg.Inch
 	trendPanelHeight = 2.6 * vg.Inch
 )
 
@@ -93,10 +94,9 @@ func TrendFigure(d TrendData) (*Figure, error) {
 	p := newPanel(d.Name+": individuals", "run", d.Name+unit)
 	runAxis(p, d.Runs)
 	if d.Limits {
-		limit := draw.LineStyle{Color: seriesColor(1), Width: vg.Points(1.1), Dashes: dashes[1]}
-		addLevel(p, "mean "+trendNum(d.Center), d.Center, draw.LineStyle{Color: inkDark, Width: vg.Points(0.8)})
-		addLevel(p, "upper limit "+trendNum(d.Upper), d.Upper, limit)
-		addLevel(p, "lower limit "+trendNum(d.Lower), d.Lower, limit)
+		limit := draw.LineStyle{Color: seriesColor(1), Width: vg.Points(1.1), Dashes: fitDashes}
+		addLevel(p, "mean "+trendNum(d.Center), draw.LineStyle{Color: inkDark, Width: vg.Points(0.8)}, d.Center)
+		addLevel(p, "limits "+trendNum(d.Lower)+", "+trendNum(d.Upper), limit, d.Lower, d.Upper)
 	}
 	if err := addDesign(p, d.Design); err != nil {
 		return nil, err
@@ -110,7 +110,7 @@ func TrendFigure(d TrendData) (*Figure, error) {
 	if err != nil {
 		return nil, err
 	}
-	pts.GlyphStyle = draw.GlyphStyle{Color: seriesColor(0), Radius: vg.Points(2.6), Shape: draw.CircleGlyph{}}
+	pts.GlyphStyle = draw.GlyphStyle{Color: seriesColor(0), Radius: vg.Points(3), Shape: draw.CircleGlyph{}}
 	p.Add(bars, pts)
 	p.Legend.Add("measured ± 2 sd", pts)
 	var named plotter.XYs
@@ -130,12 +130,12 @@ func TrendFigure(d TrendData) (*Figure, error) {
 	}
 	headroom(p)
 	if !d.Limits {
-		return newFigure(trendWidth, trendPanelHeight, p), nil
+		return newFigure(trendWidth, []vg.Length{trendPanelHeight}, p), nil
 	}
 	mr := newPanel(d.Name+": moving range", "run", "moving range"+unit)
 	runAxis(mr, d.Runs)
-	addLevel(mr, "mean "+trendNum(d.MeanMR), d.MeanMR, draw.LineStyle{Color: inkDark, Width: vg.Points(0.8)})
-	addLevel(mr, "upper limit "+trendNum(d.UpperMR), d.UpperMR, draw.LineStyle{Color: seriesColor(1), Width: vg.Points(1.1), Dashes: dashes[1]})
+	addLevel(mr, "mean "+trendNum(d.MeanMR), draw.LineStyle{Color: inkDark, Width: vg.Points(0.8)}, d.MeanMR)
+	addLevel(mr, "upper limit "+trendNum(d.UpperMR), draw.LineStyle{Color: seriesColor(1), Width: vg.Points(1.1), Dashes: fitDashes}, d.UpperMR)
 	line, err := plotter.NewLine(xyOf(x[1:], d.MR))
 	if err != nil {
 		return nil, err
@@ -145,12 +145,12 @@ func TrendFigure(d TrendData) (*Figure, error) {
 	if err != nil {
 		return nil, err
 	}
-	mrPts.GlyphStyle = draw.GlyphStyle{Color: seriesColor(0), Radius: vg.Points(2.2), Shape: draw.CircleGlyph{}}
+	mrPts.GlyphStyle = draw.GlyphStyle{Color: seriesColor(0), Radius: vg.Points(2.6), Shape: draw.BoxGlyph{}}
 	mr.Add(line, mrPts)
 	mr.Legend.Add("|change from the run before|", line, mrPts)
 	mr.Y.Min = 0
 	headroom(mr)
-	return newFigure(trendWidth, trendPanelHeight, p, mr), nil
+	return newFigure(trendWidth, []vg.Length{trendPanelHeight, trendPanelHeight}, p, mr), nil
 }
 
 // trendNum prints a limit with 4 significant digits, never in exponent
@@ -181,55 +181,49 @@ func runAxis(p *plot.Plot, runs []string) {
 	})
 }
 
-// level is a horizontal line across the whole data area at Y with its
-// label at the right end, above the line: a centre line or a control limit.
-// Its data range holds Y only, so the axis always shows it.
+// level is a horizontal line across the whole data area at each of ys: a
+// centre line or control limits, named in the legend. Its data range holds
+// ys only, so the axis always shows them.
 type level struct {
-	y     float64
-	label string
-	line  draw.LineStyle
-	text  draw.TextStyle
+	ys   []float64
+	line draw.LineStyle
 }
 
-// addLevel adds a labelled horizontal line at y to p.
-func addLevel(p *plot.Plot, label string, y float64, style draw.LineStyle) {
-	text := plot.New().Title.TextStyle
-	text.Font.Size = vg.Points(8)
-	text.Color = style.Color
-	text.XAlign = draw.XRight
-	text.YAlign = draw.YBottom
-	p.Add(&level{y: y, label: label, line: style, text: text})
+// addLevel adds horizontal lines at ys to p and names them in its legend.
+func addLevel(p *plot.Plot, label string, style draw.LineStyle, ys ...float64) {
+	p.Add(&level{ys: ys, line: style})
+	p.Legend.Add(label, legendLine(style))
 }
 
 // Plot implements plot.Plotter.
 func (l *level) Plot(c draw.Canvas, p *plot.Plot) {
 	_, trY := p.Transforms(&c)
-	y := trY(l.y)
-	c.StrokeLine2(l.line, c.Min.X, y, c.Max.X, y)
-	c.FillText(l.text, vg.Point{X: c.Max.X - vg.Points(2), Y: y + vg.Points(1)}, l.label)
+	for _, y := range l.ys {
+		c.StrokeLine2(l.line, c.Min.X, trY(y), c.Max.X, trY(y))
+	}
 }
 
 // DataRange implements plot.DataRanger: y only, no x range.
 func (l *level) DataRange() (xmin, xmax, ymin, ymax float64) {
-	return math.Inf(1), math.Inf(-1), l.y, l.y
+	return math.Inf(1), math.Inf(-1), slices.Min(l.ys), slices.Max(l.ys)
 }
 
-// headroom raises the top of p's y axis by a quarter of its span, so that
-// the legend in the upper corner does not cover the data.
+// headroom raises the top of p's y axis by a twelfth of its span, so that
+// the highest point and its bar stay clear of the frame.
 func headroom(p *plot.Plot) {
 	span := p.Y.Max - p.Y.Min
 	if span <= 0 {
 		span = math.Max(math.Abs(p.Y.Max), 1) * 0.1
 		p.Y.Min -= span / 2
 	}
-	p.Y.Max += 0.3 * span
+	p.Y.Max += span / 12
 }
 
 // addDesign draws the design values as a step line, each run's value
 // across its slot (a campaign may change its design); runs without one
 // leave a gap.
 func addDesign(p *plot.Plot, design []float64) error {
-	style := draw.LineStyle{Color: seriesColor(2), Width: vg.Points(1.4), Dashes: dashes[2]}
+	style := draw.LineStyle{Color: seriesColor(2), Width: vg.Points(1.4), Dashes: levelDashes}
 	var seg plotter.XYs
 	added := false
 	flush := func() error {

@@ -173,7 +173,7 @@ func identifyRig(ctx context.Context, r *ingest.Reader, setup *ingest.Setup, opt
 	}
 	for _, q := range fit.Quick {
 		id.Quick = append(id.Quick, QuickEstimate{
-			Source:             fmt.Sprintf("peak of mode indicator curve %d with half-power points", q.Curve+1),
+			Source:             fmt.Sprintf("peak at %.3f Hz of mode indicator curve %d, with half-power points", q.PeakHz, q.Curve+1),
 			NaturalFrequencyHz: q.NaturalFrequencyHz, DampingRatio: q.DampingRatio})
 	}
 	for _, w := range fit.Warnings {
@@ -185,7 +185,7 @@ func identifyRig(ctx context.Context, r *ingest.Reader, setup *ingest.Setup, opt
 		}
 	}
 	id.Warnings = append(id.Warnings, FlagWarnings(id.Modes)...)
-	id.Method = fmt.Sprintf("rig: %s FRFs, common-pole rational fraction polynomial fit (order %d) refined by weighted least squares",
+	id.Method = fmt.Sprintf("rig: %s FRFs, common-pole LSCF fit of order %d (least-squares complex frequency-domain, a rational fraction polynomial model) refined by weighted least squares",
 		frf.FRF.Method, fit.Order)
 	return id, nil
 }

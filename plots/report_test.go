@@ -10,6 +10,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -106,20 +107,29 @@ func TestWriteReport(t *testing.T) {
 		t.Fatal(err)
 	}
 	text := pageText(t, page)
-	if n := strings.Count(text, compare.Cautions); n != 2 {
-		t.Errorf("report holds the safety notice %d times, want 2 (top and footer)", n)
+	if n := strings.Count(text, compare.Cautions); n != 1 {
+		t.Errorf("report holds the safety notice %d times, want 1 (its own section; a caution line under the verdict)", n)
 	}
-	if !strings.Contains(text, "engineering estimates") {
-		t.Error("report does not say that results are engineering estimates")
+	if !strings.Contains(text, "engineering estimates") || !strings.Contains(text, "can hurt people") {
+		t.Error("report does not say that results are engineering estimates, or lacks the caution line")
 	}
 	r := in.Result
-	musts := []string{r.Log.Path, r.Log.SHA256, r.Test, in.Vehicle, in.Title, "1.130 ± 0.012", "0.290 ± 0.015", "37400 ± 900", "+1.5", "0.991"}
+	musts := []string{r.Log.Path, r.Log.SHA256, in.Vehicle, in.Title, "rig test",
+		// modes: measured ± sd, model, difference, MAC
+		"1.130 ± 0.012", "1.140", "-0.9", "0.290 ± 0.015", "0.991",
+		// rates: design, back-calculated ± sd, difference, tolerance
+		"37.40 ± 0.90", "38.00", "42.10 ± 0.30", "40.00", "+5.2 %", "±3 %",
+		// checks by name, with their numbers and status
+		"Bounce frequency", "1.130 ± 0.024 Hz", "1.083 to 1.197 Hz", "Rear ride rate", "42.10 ± 0.60 kN/m", "38.80 to 41.20 kN/m",
+		"Bounce pitch frequency ratio", "PASS", "FAIL", "NOTE",
+		// the verdict names what failed, against the design and the tolerance
+		"The car does not match its design: 1 of 2 target checks fail",
+		"Rear ride rate 42.10 ± 0.60 kN/m (2 sd): +5.2 % against design 40.00 kN/m, tolerance ±3 %: fail",
+		"not recorded (no date in the log's notes)"}
 	for _, m := range r.Modes {
 		musts = append(musts, m.Label, m.Method)
 	}
-	for _, c := range r.Checks {
-		musts = append(musts, c.Name, c.Detail, strings.ToUpper(c.Status))
-	}
+	musts = append(musts, r.Checks[1].Detail)
 	musts = append(musts, r.Warnings...)
 	musts = append(musts, r.Log.Notes...)
 	musts = append(musts, in.Choices...)
@@ -130,13 +140,29 @@ func TestWriteReport(t *testing.T) {
 			t.Errorf("report text lacks %q", m)
 		}
 	}
-	if got := strings.Count(string(page), `src="data:image/png;base64,`); got != 5 {
-		t.Errorf("report embeds %d images, want 5", got)
-	}
-	for _, bad := range []string{`src="http`, `href=`, "@import", "url("} {
-		if strings.Contains(string(page), bad) {
-			t.Errorf("report refers outside itself: %q", bad)
+	// Check ids are for the JSON; the page names the checks in words.
+	for _, c := range r.Checks {
+		if strings.Contains(text, c.Name) {
+			t.Errorf("report text shows the check id %q", c.Name)
 		}
+	}
+	if n := strings.Count(text, r.Modes[0].Method); n != 1 {
+		t.Errorf("the method is named %d times, want once", n)
+	}
+	if got := strings.Count(string(page), `<svg class="figure"`); got != 5 {
+		t.Errorf("report has %d inline SVG figures, want 5", got)
+	}
+	for _, bad := range []string{"<img", `src="http`, `href=`, "@import", "url(", "<script"} {
+		if strings.Contains(string(page), bad) {
+			t.Errorf("report holds %q: it must be one self-contained file without scripts", bad)
+		}
+	}
+	verdict := regexp.MustCompile(`<section id="verdict"[^>]*data-verdict="([a-z]+)"`).FindStringSubmatch(string(page))
+	if verdict == nil || verdict[1] != "fail" {
+		t.Errorf("verdict element %v, want data-verdict=\"fail\"", verdict)
+	}
+	if i, j := strings.Index(string(page), `id="verdict"`), strings.Index(string(page), `id="modes"`); i < 0 || j < i {
+		t.Error("the verdict does not come before the modes")
 	}
 }
 
@@ -144,7 +170,7 @@ func TestWriteReportEscapes(t *testing.T) {
 	const hostile = `<script>alert("x")</script>`
 	in := ReportInput{Vehicle: hostile, Result: synthResult(t)}
 	in.Result.Log.Notes = append(in.Result.Log.Notes, hostile)
-	in.Result.Checks[0].Detail = hostile
+	in.Result.Checks[1].Detail = hostile
 	files, err := WriteReport(t.TempDir(), in)
 	if err != nil {
 		t.Fatal(err)
@@ -157,7 +183,7 @@ func TestWriteReportEscapes(t *testing.T) {
 		t.Error("a hostile string reached the page unescaped")
 	}
 	if n := strings.Count(pageText(t, page), hostile); n < 4 {
-		t.Errorf("hostile string shown %d times as text, want at least 4 (title, heading, note, check)", n)
+		t.Errorf("hostile string shown %d times as text, want at least 4 (title, subtitle, fact, note)", n)
 	}
 }
 

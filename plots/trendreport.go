@@ -26,14 +26,14 @@ var trendTemplate = template.Must(template.Must(reportTemplate.Clone()).New("tre
 // trendView is what the trend template renders: every number already
 // formatted.
 type trendView struct {
-	Title, Subject        string
-	Verdict, VerdictWord  string
-	VerdictClass, Summary string
-	Findings, Notes       []string
-	Errors                []string
-	Columns               []string
-	Rows                  []trendRow
-	Figures               []figureView
+	Title, Subject  string
+	Verdict         verdictView
+	Findings, Notes []string
+	Cautions        string
+	Errors          []string
+	Columns         []string
+	Rows            []trendRow
+	Figures         []figureView
 }
 
 // trendRow is one run in the runs table.
@@ -52,6 +52,8 @@ func verdictStyle(v string) (word, class string) {
 		return "FAIL", "verdict-fail"
 	case compare.StatusInconclusive:
 		return "INCONCLUSIVE", "verdict-warn"
+	case compare.StatusNone:
+		return "NOT JUDGED", "verdict-other"
 	}
 	return strings.ToUpper(v), "verdict-other"
 }
@@ -119,11 +121,16 @@ func trendData(c *trend.Campaign, s trend.Series) TrendData {
 
 // newTrendView formats c for the template.
 func newTrendView(c *trend.Campaign) trendView {
-	v := trendView{Title: "Campaign trend report", Subject: "every car in the store", Verdict: c.Verdict, Summary: c.Summary, Notes: c.Notes}
+	v := trendView{Title: "Campaign trend report", Subject: "every car in the store", Notes: c.Notes, Cautions: compare.Cautions,
+		Verdict: verdictView{Status: c.Verdict, Headline: c.Summary}}
 	if c.Car != "" {
 		v.Subject = "car " + c.Car
 	}
-	v.VerdictWord, v.VerdictClass = verdictStyle(c.Verdict)
+	v.Verdict.Word, v.Verdict.Class = verdictStyle(c.Verdict)
+	// The badge says the verdict; the summary need not start with it.
+	if word, rest, ok := strings.Cut(c.Summary, ": "); ok && strings.EqualFold(word, c.Verdict) {
+		v.Verdict.Headline = rest
+	}
 	for _, f := range c.Findings {
 		v.Findings = append(v.Findings, f.Sentence+".")
 	}

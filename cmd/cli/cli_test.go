@@ -3,11 +3,14 @@ package cli
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/ridemodes/ridemodes/compare"
 )
 
 const exampleSetup = "../../testdata/example/hatchback.toml"
@@ -160,6 +163,30 @@ func TestDemo(t *testing.T) {
 	res := readResult(t, filepath.Join(dir, "result.json"))
 	if r := res.Updated.RearRateNPerM / 45100; math.Abs(r-1) > 0.02 {
 		t.Errorf("demo rear rate %.0f N/m, built 45100", res.Updated.RearRateNPerM)
+	}
+	// The demo tells a story: its targets are tight enough that the rear
+	// spring, 10 % stiffer than drawn, fails (a 5 % ride rate tolerance),
+	// and nothing else does; its output explains the exit code analyze
+	// gives, and the report a newcomer opens states the finding first.
+	for _, r := range []compare.Result{res, readResult(t, filepath.Join(dir, "drop-result.json"))} {
+		if r.Verdict == nil || r.Verdict.Status != compare.StatusFail {
+			t.Errorf("demo %s verdict %+v, want fail", r.Test, r.Verdict)
+		}
+		for _, c := range r.Checks {
+			if strings.HasPrefix(c.Name, "target.") && (c.Status == compare.StatusFail) != (c.Name == "target.rear_ride_rate") {
+				t.Errorf("demo %s check %s is %s: only the rear ride rate should fail", r.Test, c.Name, c.Status)
+			}
+		}
+	}
+	if n := strings.Count(out, fmt.Sprintf("analyze exits %d (%v)", exitTargets, errTargetsFailed)); n != 2 {
+		t.Errorf("demo explains analyze's exit code %d %d times, want 2 (rig and drop):\n%s", exitTargets, n, out)
+	}
+	page, err := os.ReadFile(filepath.Join(dir, "report", "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(page), `data-verdict="fail"`) || !strings.Contains(string(page), "Rear ride rate") {
+		t.Error("the demo's rig report does not state the failed rear ride rate in its verdict")
 	}
 	// A second run into the same folder refuses to overwrite it.
 	if code, _, errs := run(t, "demo", "--out", dir); code != exitUsage || !strings.Contains(errs, "not empty") {

@@ -96,12 +96,14 @@ func DecayFigure(d DecayData) (*Figure, error) {
 					return nil, fmt.Errorf("plots: time history fit %q: %w", s.Name, err)
 				}
 				l.LineStyle = fitLine(i)
+				l.Width = vg.Points(1.9)
 				p.Add(l)
 				p.Legend.Add(s.Name, l)
 				continue
 			}
+			// Thin and light, so that the dashed fit over a noisy record shows.
 			ls := seriesLine(i)
-			ls.Width = vg.Points(1)
+			ls.Color, ls.Width = tint(seriesColor(i), 0x80), vg.Points(0.8)
 			thumbs, err := markedLine(p, xy, ls, seriesGlyph(i), false, i, len(d.Measured))
 			if err != nil {
 				return nil, fmt.Errorf("plots: time history %q: %w", s.Name, err)

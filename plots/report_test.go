@@ -257,3 +257,36 @@ func BenchmarkWriteReport(b *testing.B) {
 		}
 	}
 }
+
+// TestReportFlaggedAndInconclusive: a flagged mode is marked in the modes
+// table with its reasons, and an inconclusive check says why in its row and
+// in the verdict box, which opens with the inconclusive verdict.
+func TestReportFlaggedAndInconclusive(t *testing.T) {
+	r := synthResult(t)
+	const reason = "its damping ratio rests on less than one cycle of the decay."
+	r.Modes[1].Flagged, r.Modes[1].FlagReasons = true, []string{reason}
+	sigma := 0.018
+	r.Checks = []compare.Check{{Name: "target.pitch_frequency", Status: compare.StatusInconclusive,
+		Detail:   "measured 1.390 Hz (sigma 0.018), model 1.370 Hz; the pitch mode is flagged, so the check cannot be trusted: inconclusive",
+		Quantity: &compare.Quantity{Value: 1.39, Unit: "Hz", Sigma: &sigma, Low: ptr(1.3015), High: ptr(1.4385)}}}
+	r.Verdict = &compare.Verdict{Status: compare.StatusInconclusive, Summary: "Nothing failed, but pitch frequency is inconclusive."}
+	files, err := WriteReport(t.TempDir(), ReportInput{Result: r})
+	if err != nil {
+		t.Fatal(err)
+	}
+	page, err := os.ReadFile(files[len(files)-1])
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := pageText(t, page)
+	for _, want := range []string{"pitch (flagged)", reason, "INCONCLUSIVE", "a mode it uses is flagged (see Modes)",
+		"Not decided: nothing failed, but 1 of 1 target checks are inconclusive.",
+		"Pitch frequency 1.390 ± 0.036 Hz (2 sd): +1.5 % against model 1.370 Hz, tolerance ±5 %: inconclusive (a mode it uses is flagged (see Modes))"} {
+		if !strings.Contains(text, want) {
+			t.Errorf("report text lacks %q", want)
+		}
+	}
+	if !strings.Contains(string(page), `data-verdict="inconclusive"`) {
+		t.Error("verdict element is not inconclusive")
+	}
+}

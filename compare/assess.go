@@ -18,9 +18,13 @@ func ModelMethod(damped bool) string {
 
 // ModelPart is the model part of a result: the design's rates and its
 // model's modes.
-func ModelPart(design Vehicle, modes []Mode) *ModelJSON {
+func ModelPart(spec ingest.VehicleSpec, modes []Mode) *ModelJSON {
+	design := DesignOf(spec)
 	damped := design.Damped()
 	m := &ModelJSON{Damped: damped, Rates: RatesJSON(design.RatesOf())}
+	for _, r := range RideRates(spec) {
+		m.RideRates = append(m.RideRates, r.JSON())
+	}
 	for _, md := range modes {
 		m.Modes = append(m.Modes, md.JSON("design model, "+ModelMethod(damped)))
 	}
@@ -52,7 +56,7 @@ func (r *Result) AssessAgainst(setup *ingest.Setup) error {
 	if err != nil {
 		return fmt.Errorf("%s: %w", setup.Path, err)
 	}
-	r.Model = ModelPart(design, model)
+	r.Model = ModelPart(setup.Vehicle, model)
 	measured, err := MeasuredFromJSON(r.Modes)
 	if err != nil {
 		return err

@@ -33,7 +33,7 @@ func (v Vehicle) WithRates(r Rates) Vehicle {
 }
 
 // ErrNoFit is matched by errors.Is for every *NoFitError.
-var ErrNoFit = errors.New("compare: the measured modes cannot come from the model")
+var ErrNoFit = errors.New("the measured modes cannot come from the model")
 
 // NoFitError says that no rates of the model reproduce the measured modes
 // with the setup's mass, pitch inertia and axle positions.
@@ -49,12 +49,12 @@ type NoFitError struct {
 
 func (e *NoFitError) Error() string {
 	if !e.Damped {
-		return fmt.Sprintf("compare: the measured natural frequencies (ratio %.4f) lie closer together than "+
+		return fmt.Sprintf("the measured natural frequencies (ratio %.4f) lie closer together than "+
 			"this body allows: with its mass, pitch inertia and axle positions any positive front and rear "+
 			"rates give a ratio of at least %.4f; check the mass, pitch inertia and CG position in the setup, "+
 			"and the identified frequencies", e.FrequencyRatio, e.MinFrequencyRatio)
 	}
-	return fmt.Sprintf("compare: no positive front and rear rates with non-negative damping reproduce the "+
+	return fmt.Sprintf("no positive front and rear rates with non-negative damping reproduce the "+
 		"measured poles (natural frequency ratio %.4f) with this body's mass, pitch inertia and axle "+
 		"positions; check those in the setup and the identified frequencies and damping ratios, or "+
 		"back-calculate the rates alone by leaving the damping out", e.FrequencyRatio)
@@ -83,7 +83,7 @@ func checkBody(body Vehicle) error {
 func checkFrequencies(fn1Hz, fn2Hz float64) (w1, w2 float64, err error) {
 	for _, f := range []float64{fn1Hz, fn2Hz} {
 		if !(f > 0) || math.IsInf(f, 0) {
-			return 0, 0, fmt.Errorf("compare: a natural frequency of %g Hz cannot be used; "+
+			return 0, 0, fmt.Errorf("a natural frequency of %g Hz cannot be used; "+
 				"give two positive, finite natural frequencies", f)
 		}
 	}
@@ -180,7 +180,7 @@ func BackCalcDamped(body Vehicle, fn1Hz, zeta1, fn2Hz, zeta2 float64) ([]Rates, 
 	}
 	for _, z := range []float64{zeta1, zeta2} {
 		if !(z >= 0 && z < 1) {
-			return nil, fmt.Errorf("compare: a damping ratio of %g cannot be used; give damping ratios "+
+			return nil, fmt.Errorf("a damping ratio of %g cannot be used; give damping ratios "+
 				"from 0 up to (not including) 1, or back-calculate the rates alone", z)
 		}
 	}
@@ -318,7 +318,7 @@ func polyRoots(c []float64) ([]complex128, error) {
 	}
 	var eig mat.Eigen
 	if !eig.Factorize(A, mat.EigenNone) {
-		return nil, errors.New("compare: the eigenvalue solver did not converge on the back-calculation polynomial")
+		return nil, errors.New("the eigenvalue solver did not converge on the back-calculation polynomial")
 	}
 	return eig.Values(nil), nil
 }

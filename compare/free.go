@@ -32,7 +32,7 @@ func (v Vehicle) NewFreeResponse(x0 State) (*FreeResponse, error) {
 	A := v.stateMatrix()
 	var eig mat.Eigen
 	if ok := eig.Factorize(A, mat.EigenBoth); !ok {
-		return nil, errors.New("compare: the eigenvalue solver did not converge")
+		return nil, errors.New("the eigenvalue solver did not converge")
 	}
 	var R, L mat.CDense
 	eig.VectorsTo(&R)
@@ -48,7 +48,7 @@ func (v Vehicle) NewFreeResponse(x0 State) (*FreeResponse, error) {
 			uhv += u * vi[r]
 		}
 		if cmplx.Abs(uhv) < 1e-12 {
-			return nil, errors.New("compare: the state matrix is defective; perturb a parameter slightly")
+			return nil, errors.New("the state matrix is defective; perturb a parameter slightly")
 		}
 		fr.right = append(fr.right, vi)
 		fr.coef = append(fr.coef, uhx/uhv)

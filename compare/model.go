@@ -28,7 +28,8 @@ type Vehicle struct {
 
 // ErrOverdamped is returned when a mode of the model has no oscillating pole
 // pair (a damping ratio of one or more).
-var ErrOverdamped = errors.New("compare: the model has an overdamped mode (damping ratio >= 1)")
+var ErrOverdamped = errors.New("the design model has an overdamped mode (damping ratio 1 or more), which no car body has: " +
+	"the damping is far too high for the rates and the mass; check front_damping_ns_per_m and rear_damping_ns_per_m in [vehicle]")
 
 // WheelbaseM returns L = a + b.
 func (v Vehicle) WheelbaseM() float64 { return v.CGToFrontM + v.CGToRearM }
@@ -45,7 +46,7 @@ func (v Vehicle) Validate() error {
 	}
 	for _, p := range pos {
 		if !(p.val > 0) || math.IsInf(p.val, 0) {
-			return fmt.Errorf("compare: %s must be positive and finite, got %g", p.name, p.val)
+			return fmt.Errorf("%s must be positive and finite, got %g", p.name, p.val)
 		}
 	}
 	for _, p := range []struct {
@@ -53,7 +54,7 @@ func (v Vehicle) Validate() error {
 		val  float64
 	}{{"front damping", v.FrontDampingNsPerM}, {"rear damping", v.RearDampingNsPerM}} {
 		if !(p.val >= 0) || math.IsInf(p.val, 0) {
-			return fmt.Errorf("compare: %s must be zero or positive and finite, got %g", p.name, p.val)
+			return fmt.Errorf("%s must be zero or positive and finite, got %g", p.name, p.val)
 		}
 	}
 	return nil
@@ -214,7 +215,7 @@ func (v Vehicle) DampedModes() ([]Mode, error) {
 	}
 	var eig mat.Eigen
 	if ok := eig.Factorize(v.stateMatrix(), mat.EigenRight); !ok {
-		return nil, errors.New("compare: the eigenvalue solver did not converge")
+		return nil, errors.New("the eigenvalue solver did not converge")
 	}
 	vals := eig.Values(nil)
 	var vecs mat.CDense

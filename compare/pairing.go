@@ -59,10 +59,10 @@ func MeasuredFromJSON(ms []ModeJSON) ([]MeasuredMode, error) {
 	out := make([]MeasuredMode, 0, len(ms))
 	for i, j := range ms {
 		if j.Label != "bounce" && j.Label != "pitch" {
-			return nil, fmt.Errorf("compare: mode %d has label %q; label each mode \"bounce\" or \"pitch\"", i+1, j.Label)
+			return nil, fmt.Errorf("mode %d has label %q; label each mode \"bounce\" or \"pitch\"", i+1, j.Label)
 		}
 		if !(j.NaturalFrequencyHz > 0) || math.IsInf(j.NaturalFrequencyHz, 0) {
-			return nil, fmt.Errorf("compare: mode %d (%s) has natural_frequency_hz %g; give a positive frequency in Hz",
+			return nil, fmt.Errorf("mode %d (%s) has natural_frequency_hz %g; give a positive frequency in Hz",
 				i+1, j.Label, j.NaturalFrequencyHz)
 		}
 		m := MeasuredMode{Label: j.Label, NaturalFrequencyHz: j.NaturalFrequencyHz,
@@ -70,7 +70,7 @@ func MeasuredFromJSON(ms []ModeJSON) ([]MeasuredMode, error) {
 			Flagged: j.Flagged, FlagReasons: j.FlagReasons}
 		if j.DampingRatio != 0 {
 			if !(j.DampingRatio > 0 && j.DampingRatio < 1) {
-				return nil, fmt.Errorf("compare: mode %d (%s) has damping_ratio %g; give a value between 0 and 1, "+
+				return nil, fmt.Errorf("mode %d (%s) has damping_ratio %g; give a value between 0 and 1, "+
 					"or leave it out", i+1, j.Label, j.DampingRatio)
 			}
 			m.DampingRatio = j.DampingRatio
@@ -99,7 +99,7 @@ func MeasuredFromJSON(ms []ModeJSON) ([]MeasuredMode, error) {
 		}
 		for _, s := range []float64{m.Sigma.NaturalFrequencyHz, m.Sigma.DampingRatio, m.Sigma.PitchPerBounceRadPerM} {
 			if !(s >= 0) || math.IsInf(s, 0) {
-				return nil, fmt.Errorf("compare: mode %d (%s) has an uncertainty of %g; standard deviations "+
+				return nil, fmt.Errorf("mode %d (%s) has an uncertainty of %g; standard deviations "+
 					"must be zero or positive and finite", i+1, j.Label, s)
 			}
 		}
@@ -214,7 +214,7 @@ func macMatrix(meas []MeasuredMode, model []Mode, sensorsXM []float64, car Vehic
 
 // ErrModes is matched by errors.Is when the measured modes are not one
 // bounce and one pitch mode.
-var ErrModes = errors.New("compare: give exactly one measured bounce and one measured pitch mode")
+var ErrModes = errors.New("give exactly one measured bounce and one measured pitch mode")
 
 // pairByLabel returns the measured modes ordered like the model's (bounce
 // and pitch as the model labels them).
@@ -235,6 +235,30 @@ func pairByLabel(meas []MeasuredMode, model []Mode) ([]MeasuredMode, error) {
 		}
 	}
 	return out, nil
+}
+
+// nodeRuleWarning warns when the labels of measured modes (a hand-written
+// file's, most often) look swapped by the node rule of package
+// identify/body, the mode whose node lies farther from the CG being bounce:
+// the mode labelled bounce has its node between the axles of car, and the
+// mode labelled pitch has its node farther out or none measured.
+func nodeRuleWarning(ms []MeasuredMode, car Vehicle) string {
+	node := map[string]float64{"bounce": math.NaN(), "pitch": math.NaN()}
+	for _, m := range ms {
+		if m.PitchPerBounceRadPerM != 0 {
+			node[m.Label] = 1 / m.PitchPerBounceRadPerM // NaN when not measured
+		}
+	}
+	b, p := node["bounce"], node["pitch"]
+	if math.IsNaN(b) || !(b > -car.CGToRearM && b < car.CGToFrontM) || math.Abs(p) <= math.Abs(b) {
+		return ""
+	}
+	w := fmt.Sprintf("the mode labelled bounce has its node %+.2f m from the CG, between the axles (%+.2f m to %+.2f m), "+
+		"where a pitch mode's node lies", b, -car.CGToRearM, car.CGToFrontM)
+	if !math.IsNaN(p) {
+		w += fmt.Sprintf(", and the mode labelled pitch has its node farther out, at %+.2f m", p)
+	}
+	return w + ": the labels look swapped (the mode whose node lies farther from the CG is bounce); check the labels of the measured modes"
 }
 
 // Compare sets the measured modes beside the modes of the design model
@@ -260,6 +284,8 @@ func Compare(measured []MeasuredMode, design Vehicle, sensorsXM []float64) ([]Co
 			"model's %s (MAC %.3f against %.3f); check the labels of the measured modes and the sensor positions",
 			paired[0].Label, model[1].Label, macs[0][1], macs[0][0],
 			paired[1].Label, model[0].Label, macs[1][0], macs[1][1]))
+	} else if w := nodeRuleWarning(paired, design); w != "" {
+		warns = append(warns, w)
 	}
 	out := make([]Comparison, 2)
 	for i, mm := range paired {
@@ -293,7 +319,7 @@ func Compare(measured []MeasuredMode, design Vehicle, sensorsXM []float64) ([]Co
 // The reason says how the choice was made.
 func ChooseRoot(car Vehicle, cands []Rates, measured []MeasuredMode, sensorsXM []float64, design Rates) (int, string, error) {
 	if len(cands) == 0 {
-		return 0, "", errors.New("compare: no candidate rates to choose from")
+		return 0, "", errors.New("no candidate rates to choose from")
 	}
 	if len(measured) != 2 {
 		return 0, "", fmt.Errorf("%w (got %d modes)", ErrModes, len(measured))
@@ -331,7 +357,7 @@ func ChooseRoot(car Vehicle, cands []Rates, measured []MeasuredMode, sensorsXM [
 		}
 	}
 	if best < 0 {
-		return 0, "", errors.New("compare: no candidate rates give an oscillating model")
+		return 0, "", errors.New("no candidate rates give an oscillating model")
 	}
 	return best, fmt.Sprintf("chosen by the measured mode shapes (sum of MAC %.4f over both modes)", bestScore), nil
 }

@@ -91,8 +91,26 @@ type ModelJSON struct {
 	// Rates are the design's ride rates and damping, as the setup gives
 	// them (damping 0 when it gives none): the reference of the
 	// back-calculated ones.
-	Rates RatesJSON  `json:"rates"`
-	Modes []ModeJSON `json:"modes"`
+	Rates RatesJSON `json:"rates"`
+	// RideRates says per axle how the ride rate in Rates was obtained:
+	// given, or built up from the spring rate, the motion ratio and the
+	// tyre rate.
+	RideRates []RideRateJSON `json:"ride_rates"`
+	Modes     []ModeJSON     `json:"modes"`
+}
+
+// RideRateJSON is one axle's ride rate and, when the setup builds it up,
+// its parts under the setup's own key names (N/m per axle; the motion ratio
+// is spring travel per wheel travel). TyreRateNPerM is absent for a rigid
+// tyre (none given).
+type RideRateJSON struct {
+	Axle                      string   `json:"axle"`
+	RideRateNPerM             float64  `json:"ride_rate_n_per_m"`
+	Source                    string   `json:"source"` // "given" or "built_up"
+	SpringRateNPerM           *float64 `json:"spring_rate_n_per_m,omitempty"`
+	MotionRatioSpringPerWheel *float64 `json:"motion_ratio_spring_per_wheel,omitempty"`
+	WheelRateNPerM            *float64 `json:"wheel_rate_n_per_m,omitempty"`
+	TyreRateNPerM             *float64 `json:"tyre_rate_n_per_m,omitempty"`
 }
 
 // ModeJSON is one mode as the contract writes it. Pointers are null when a

@@ -41,6 +41,17 @@ func (r AxleRideRate) String() string {
 		r.Axle, b.SpringRateNPerM, b.MotionRatioSpringPerWheel, b.WheelRateNPerM(), tyre, r.RideRateNPerM)
 }
 
+// JSON returns the ride rate and its build-up in the result's form.
+func (r AxleRideRate) JSON() RideRateJSON {
+	j := RideRateJSON{Axle: r.Axle, RideRateNPerM: r.RideRateNPerM, Source: "given"}
+	if b := r.BuildUp; b != nil {
+		j.Source = "built_up"
+		j.SpringRateNPerM, j.MotionRatioSpringPerWheel = Finite(b.SpringRateNPerM), Finite(b.MotionRatioSpringPerWheel)
+		j.WheelRateNPerM, j.TyreRateNPerM = Finite(b.WheelRateNPerM()), Finite(b.TyreRateNPerM)
+	}
+	return j
+}
+
 // SpringRateFor returns the axle spring rate (N/m, both springs) that gives
 // the ride rate rideNPerM with the motion ratio and tyre rate of b: the
 // inverse of RideRateNPerM, ks = kw / ratio^2 with 1/kw = 1/kride - 1/kt.
@@ -48,12 +59,12 @@ func (r AxleRideRate) String() string {
 // reach it).
 func SpringRateFor(b ingest.RideRateBuildUp, rideNPerM float64) (float64, error) {
 	if !(rideNPerM > 0) || math.IsInf(rideNPerM, 0) {
-		return 0, fmt.Errorf("compare: a ride rate of %g N/m has no spring rate; it must be positive and finite", rideNPerM)
+		return 0, fmt.Errorf("a ride rate of %g N/m has no spring rate; it must be positive and finite", rideNPerM)
 	}
 	kw := rideNPerM
 	if !math.IsInf(b.TyreRateNPerM, 1) {
 		if rideNPerM >= b.TyreRateNPerM {
-			return 0, fmt.Errorf("compare: a ride rate of %.0f N/m is not below the tyre rate of %.0f N/m, "+
+			return 0, fmt.Errorf("a ride rate of %.0f N/m is not below the tyre rate of %.0f N/m, "+
 				"so no spring gives it; check the tyre rate in the setup", rideNPerM, b.TyreRateNPerM)
 		}
 		kw = 1 / (1/rideNPerM - 1/b.TyreRateNPerM)

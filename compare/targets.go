@@ -163,8 +163,8 @@ func TargetChecks(t ingest.Targets, design Vehicle, model []Mode, paired []Measu
 			low:      c.PredictedHz * (1 - tol/100), high: c.PredictedHz * (1 + tol/100), shown: shownHz,
 			against: fmt.Sprintf("%+.1f %% against the model, tolerance ±%g %%", c.DifferencePct, tol),
 			flagged: flagWords(paired[i]),
-			detail: fmt.Sprintf("measured %.3f Hz (sigma %.3f), model %.3f Hz: %+.1f %% against +-%.1f %%",
-				c.MeasuredHz, paired[i].Sigma.NaturalFrequencyHz, c.PredictedHz, c.DifferencePct, tol)}.check())
+			detail: fmt.Sprintf("measured %s, model %.3f Hz: %+.1f %% against ±%.1f %%",
+				withSD("%.3f", c.MeasuredHz, paired[i].Sigma.NaturalFrequencyHz, " Hz"), c.PredictedHz, c.DifferencePct, tol)}.check())
 	}
 	if tol := t.DampingRatioTolerance; !math.IsNaN(tol) {
 		for i, c := range cmp {
@@ -182,8 +182,8 @@ func TargetChecks(t ingest.Targets, design Vehicle, model []Mode, paired []Measu
 					low: c.PredictedDampingRatio - tol, high: c.PredictedDampingRatio + tol, shown: shownRatio,
 					against: fmt.Sprintf("%+.3f against the model, tolerance ±%g", d, tol),
 					flagged: flagWords(paired[i]),
-					detail: fmt.Sprintf("measured %.3f (sigma %.3f), model %.3f: %+.3f against +-%.3f",
-						*c.MeasuredDampingRatio, paired[i].Sigma.DampingRatio, c.PredictedDampingRatio, d, tol)}.check())
+					detail: fmt.Sprintf("measured %s, model %.3f: %+.3f against ±%.3f",
+						withSD("%.3f", *c.MeasuredDampingRatio, paired[i].Sigma.DampingRatio, ""), c.PredictedDampingRatio, d, tol)}.check())
 			}
 		}
 	}
@@ -241,8 +241,8 @@ func TargetChecks(t ingest.Targets, design Vehicle, model []Mode, paired []Measu
 					low: it.want * (1 - tol/100), high: it.want * (1 + tol/100), shown: it.shown,
 					against: fmt.Sprintf("%+.1f %% against design, tolerance ±%g %%", d, tol),
 					flagged: flagWords(paired...),
-					detail: fmt.Sprintf("back-calculated %.0f %s (sigma %.0f), design %.0f %s: %+.1f %% against +-%.1f %%",
-						it.got, it.shown.json, it.sigma, it.want, it.shown.json, d, tol)}.check())
+					detail: fmt.Sprintf("back-calculated %s, design %.0f %s: %+.1f %% against ±%.1f %%",
+						withSD("%.0f", it.got, it.sigma, " "+it.shown.json), it.want, it.shown.json, d, tol)}.check())
 			}
 		}
 	}
@@ -260,6 +260,17 @@ func TargetChecks(t ingest.Targets, design Vehicle, model []Mode, paired []Measu
 		{"rear_damping", got.RearDampingNsPerM, sig.RearDampingNsPerM, want.RearDampingNsPerM, shownDamping, true, want.RearDampingNsPerM == 0},
 	})
 	return out
+}
+
+// withSD formats a value, its unit and its standard deviation, e.g.
+// "1.235 Hz (sd 0.003)"; without a standard deviation (0 or not finite:
+// none was given) the value alone.
+func withSD(format string, v, sd float64, unit string) string {
+	s := fmt.Sprintf(format, v) + unit
+	if sd > 0 && !math.IsInf(sd, 0) {
+		s += " (sd " + fmt.Sprintf(format, sd) + ")"
+	}
+	return s
 }
 
 // positiveOrNaN returns a measured standard deviation, or NaN (unknown) when
@@ -318,8 +329,8 @@ func noFitCheck(name string, err error, paired []MeasuredMode) Check {
 	words := fmt.Sprintf("%s: the measured frequency ratio %.4f ± %.4f (k = 2) against the least of %.4f "+
 		"that this body allows", plainName(name), nf.FrequencyRatio, coverageFactor*sigma, nf.MinFrequencyRatio)
 	why := "the ratio with its expanded uncertainty reaches the least"
-	detail := fmt.Sprintf("%s; the measured frequency ratio %.4f (sigma %.4f) against the least of %.4f",
-		head, nf.FrequencyRatio, sigma, nf.MinFrequencyRatio)
+	detail := fmt.Sprintf("%s; the measured frequency ratio %s against the least of %.4f",
+		head, withSD("%.4f", nf.FrequencyRatio, sigma, ""), nf.MinFrequencyRatio)
 	if fl := flagWords(paired...); fl != "" {
 		status, why = StatusInconclusive, fl
 		detail += "; " + fl + ", so the check cannot be trusted"

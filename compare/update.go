@@ -116,7 +116,7 @@ func UpdateModel(design Vehicle, measured []MeasuredMode, sensorsXM []float64, o
 	}
 	if len(obs) <= nPar || !(ms[0].HasShape() || ms[1].HasShape()) {
 		if opt.FreePitchInertia {
-			return nil, fmt.Errorf("compare: freeing the pitch inertia needs more measured values than "+
+			return nil, fmt.Errorf("freeing the pitch inertia needs more measured values than "+
 				"unknowns (%d values for %d unknowns); measure the pitch per bounce of both modes, "+
 				"or keep the pitch inertia fixed", len(obs), nPar)
 		}
@@ -243,7 +243,7 @@ func observations(ms []MeasuredMode, damped bool) []observation {
 
 // ErrNotIdentifiable is returned when the measured values do not fix every
 // parameter of a least-squares update.
-var ErrNotIdentifiable = errors.New("compare: the measured values do not determine every updated parameter " +
+var ErrNotIdentifiable = errors.New("the measured values do not determine every updated parameter " +
 	"(singular normal equations); keep the pitch inertia fixed or measure the mode shapes")
 
 // leastSquares fits the rates (damping when measured, pitch inertia when
@@ -315,13 +315,13 @@ func (u *Update) leastSquares(obs []observation, freeJ bool) error {
 	x := make([]float64, len(scale))
 	lm, err := lsq.Minimize(lsq.Differenced(resid, fd.Central, fdStep), len(obs), x, lsq.Settings{})
 	if err != nil {
-		return fmt.Errorf("compare: the least-squares update did not converge in %d iterations; "+
+		return fmt.Errorf("the least-squares update did not converge in %d iterations; "+
 			"check the measured modes and their uncertainties", lsq.DefaultMaxIterations)
 	}
 	v := vehicleAt(x)
 	f, err := fitted(v)
 	if err != nil {
-		return fmt.Errorf("compare: the least-squares update ended outside the oscillating region: %w", err)
+		return fmt.Errorf("the least-squares update ended outside the oscillating region: %w", err)
 	}
 
 	var jtj mat.SymDense

@@ -35,18 +35,18 @@ type FRFOptions struct {
 // command line names: one of ingest.Windows, which are the spectral windows'
 // own names (Window.String); "" is ingest.DefaultWindow. An unknown name is
 // an error that lists the valid ones.
-func WindowNamed(name string) (spectral.Window, error) {
+func WindowNamed(name string) (w spectral.Window, note string, err error) {
 	if name == "" {
 		name = ingest.DefaultWindow
 	}
-	if ingest.KnownWindow(name) {
+	if canonical, note, ok := ingest.WindowName(name); ok {
 		for _, w := range []spectral.Window{spectral.Hann, spectral.Hamming, spectral.FlatTop, spectral.Rectangular} {
-			if w.String() == name {
-				return w, nil
+			if w.String() == canonical {
+				return w, note, nil
 			}
 		}
 	}
-	return 0, fmt.Errorf("unknown window %q; use one of %s", name, strings.Join(ingest.Windows, ", "))
+	return 0, "", fmt.Errorf("unknown window %q; use one of %s", name, strings.Join(ingest.Windows, ", "))
 }
 
 // DefaultFitResolutionBias caps the expected resolution bias when the
@@ -106,10 +106,10 @@ func (o *FRFOptions) defaults() error {
 		o.MaxResolutionBias = DefaultFitResolutionBias
 	}
 	if !(o.BandLowHz > 0) || !(o.BandHighHz > o.BandLowHz) {
-		return fmt.Errorf("identify: the analysis band needs 0 < low < high (got %g to %g Hz)", o.BandLowHz, o.BandHighHz)
+		return fmt.Errorf("the analysis band needs 0 < low < high (got %g to %g Hz)", o.BandLowHz, o.BandHighHz)
 	}
 	if o.SegmentLen != 0 && (o.SegmentLen < 16 || o.SegmentLen&(o.SegmentLen-1) != 0) {
-		return fmt.Errorf("identify: the segment length must be a power of two of at least 16 (got %d)", o.SegmentLen)
+		return fmt.Errorf("the segment length must be a power of two of at least 16 (got %d)", o.SegmentLen)
 	}
 	return nil
 }
@@ -187,7 +187,7 @@ func NewFRFStage(channels []string, sensors []ingest.Sensor, inputs []ingest.Inp
 	find := func(name string) (int, error) {
 		i, ok := col[name]
 		if !ok {
-			return 0, fmt.Errorf("identify: channel %q of the setup is not in the stream", name)
+			return 0, fmt.Errorf("channel %q of the setup is not in the stream", name)
 		}
 		return i, nil
 	}
@@ -205,7 +205,7 @@ func NewFRFStage(channels []string, sensors []ingest.Sensor, inputs []ingest.Inp
 	}
 	if len(inputs) > 0 {
 		if len(s.axleCols[0]) == 0 || len(s.axleCols[1]) == 0 {
-			return nil, errors.New("identify: a rig test needs a front and a rear input")
+			return nil, errors.New("a rig test needs a front and a rear input")
 		}
 		for ax, cols := range s.axleCols {
 			var ns []string
@@ -238,10 +238,10 @@ func NewFRFStage(channels []string, sensors []ingest.Sensor, inputs []ingest.Inp
 // sampled at fsHz.
 func (s *FRFStage) checkNyquist(fsHz float64) error {
 	if !(fsHz > 0) || math.IsInf(fsHz, 0) {
-		return fmt.Errorf("identify: sample rate %g Hz, need a positive finite rate", fsHz)
+		return fmt.Errorf("sample rate %g Hz, need a positive finite rate", fsHz)
 	}
 	if s.opt.BandHighHz >= fsHz/2 {
-		return fmt.Errorf("identify: the band's upper edge %g Hz is at or above the Nyquist frequency %.6g Hz of the log",
+		return fmt.Errorf("the band's upper edge %g Hz is at or above the Nyquist frequency %.6g Hz of the log",
 			s.opt.BandHighHz, fsHz/2)
 	}
 	return nil
@@ -346,7 +346,7 @@ type FRFResult struct {
 // frequency of the result comes from it.
 func (s *FRFStage) Result(sampleRateHz float64) (*FRFResult, error) {
 	if s.sink == nil {
-		return nil, errors.New("identify: the log held no samples")
+		return nil, errors.New("the log held no samples")
 	}
 	if err := s.checkNyquist(sampleRateHz); err != nil {
 		return nil, err

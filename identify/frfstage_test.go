@@ -154,19 +154,23 @@ func TestStageH1WithinItsErrorBands(t *testing.T) {
 }
 
 // Every window name a setup accepts maps to the spectral window of that name,
-// "" to the default, and an unknown name is an error listing all of them.
+// "" to the default, "hanning" to Hann with a note, and an unknown name is
+// an error listing all of them.
 func TestWindowNamed(t *testing.T) {
 	for _, name := range append([]string{""}, ingest.Windows...) {
-		w, err := WindowNamed(name)
+		w, note, err := WindowNamed(name)
 		want := name
 		if name == "" {
 			want = ingest.DefaultWindow
 		}
-		if err != nil || w.String() != want {
-			t.Errorf("WindowNamed(%q) = %v, %v; want the %s window", name, w, err, want)
+		if err != nil || w.String() != want || note != "" {
+			t.Errorf("WindowNamed(%q) = %v, %q, %v; want the %s window", name, w, note, err, want)
 		}
 	}
-	_, err := WindowNamed("blackmanish")
+	if w, note, err := WindowNamed("hanning"); err != nil || w.String() != "hann" || !strings.Contains(note, `"hann"`) {
+		t.Errorf(`WindowNamed("hanning") = %v, %q, %v; want the Hann window with a note`, w, note, err)
+	}
+	_, _, err := WindowNamed("blackmanish")
 	if err == nil {
 		t.Fatal("no error for an unknown window")
 	}

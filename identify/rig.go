@@ -13,7 +13,7 @@ import (
 // returns the FRF set the fit saw, too.
 func FitRig(frf *FRFResult, sensors []ingest.Sensor, opt modal.Options) (*modal.FRFSet, *modal.Result, error) {
 	if frf.FRF == nil {
-		return nil, nil, errors.New("identify: no FRFs: a rig test needs [[input]] channels")
+		return nil, nil, errors.New("no FRFs: a rig test needs [[input]] channels")
 	}
 	set, err := modal.FromSpectral(frf.FRF, frf.Spectra, ingest.SensorPositionsM(sensors))
 	if err != nil {

@@ -1,7 +1,9 @@
 // Package ingest reads what a test engineer brings to ridemodes: the setup
 // file (TOML) that describes the vehicle, its sensors and the rig inputs, and
 // the CSV logs of vertical accelerations. Everything leaves this package in SI
-// units (m, s, kg, N, rad; accelerations in m/s^2).
+// units (m, s, kg, N, rad; accelerations in m/s^2). A setup value far
+// outside any car's (plausible.go) is an error that says what the number
+// probably meant.
 //
 // # The log dialect
 //
@@ -10,12 +12,14 @@
 //   - Lines that start with '#' before the header are notes, kept in Info.Notes
 //     without the '#' and one space. Blank lines before the header are skipped; a
 //     UTF-8 byte order mark is dropped. Notes and header must be UTF-8.
-//   - The header is "name [unit]" or "name" cells. Cells may carry spaces and
+//   - The header is "name [unit]", "name (unit)" (when the parentheses hold a
+//     unit of the dialect; other parentheses belong to the name) or "name" cells. Cells may carry spaces and
 //     double quotes ("" is a quote; a quoted cell may hold the delimiter). The
 //     delimiter is the most frequent of ',', ';' and tab outside quotes in the
 //     header (ties: tab, then ';'). One empty cell after a trailing delimiter is
 //     allowed, in the header and in every row.
-//   - Units: m/s^2 (also m/s2, m/s²), mm/s^2 (mm/s2, mm/s²), g and G (9.80665 m/s^2
+//   - Units: m/s^2 (also m/s2, m/s², m s^-2, m s-2, m s⁻², m·s^-2, m·s⁻²),
+//     mm/s^2 (mm/s2, mm/s², mm s^-2), g and G (9.80665 m/s^2
 //     exactly, the standard gravity); time in s or ms. A column without a unit is
 //     m/s^2 (time: s) with a WarnUnitMissing warning. An unknown unit is an error
 //     only for a column that is read: only the channels named in Options.Channels

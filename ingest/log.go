@@ -24,8 +24,9 @@ type Options struct {
 
 	// StartS and EndS select a window, in seconds relative to the first
 	// sample's time: samples with StartS <= t-t0 <= EndS are kept. EndS == 0
-	// means the end of the log. A window that is empty or reaches outside the
-	// log is an error (ErrWindow).
+	// means the end of the log. A window that is empty or starts after the
+	// log's last sample is an error (ErrWindow); an end after the last sample
+	// reads to the end of the log with a WarnEndClamped warning.
 	StartS, EndS float64
 
 	// Resample, an explicit opt-in, accepts a log whose time steps jitter by
@@ -196,6 +197,7 @@ const (
 	WarnRateMismatch  WarningCode = "rate_mismatch"  // time column and given sample rate disagree
 	WarnResampled     WarningCode = "resampled"      // non-uniform sampling interpolated onto a grid
 	WarnDuplicateName WarningCode = "duplicate_name" // an unread column's name appears twice
+	WarnEndClamped    WarningCode = "end_clamped"    // the window's end lies after the log's: read to the end
 )
 
 // Warning is a data-quality finding, returned as a value for the result

@@ -15,8 +15,8 @@ const standardGravity = 9.80665
 // scale. "G" is accepted beside "g" because many DAQ systems write it so; no
 // other SI unit is spelled G in an accelerometer log.
 var accelUnits = map[string]float64{
-	"m/s^2": 1, "m/s2": 1, "m/s²": 1,
-	"mm/s^2": 1e-3, "mm/s2": 1e-3, "mm/s²": 1e-3,
+	"m/s^2": 1, "m/s2": 1, "m/s²": 1, "m s^-2": 1, "m s-2": 1, "m s⁻²": 1, "m·s^-2": 1, "m·s⁻²": 1,
+	"mm/s^2": 1e-3, "mm/s2": 1e-3, "mm/s²": 1e-3, "mm s^-2": 1e-3,
 	"g": standardGravity, "G": standardGravity,
 }
 
@@ -153,14 +153,23 @@ func trimBlank(b []byte, delim byte) []byte {
 }
 
 // splitNameUnit splits a header cell "name [unit]" into its parts. A cell
-// without brackets has no unit.
+// "name (unit)" whose parentheses hold a unit of the dialect is read the
+// same way; other parentheses belong to the name. A cell without either has
+// no unit.
 func splitNameUnit(cell string) (name, unit string, hasUnit bool, err string) {
 	open := strings.LastIndexByte(cell, '[')
 	if open < 0 {
 		if strings.ContainsRune(cell, ']') {
 			return cell, "", false, "a ']' without '['; write the unit as \"name [unit]\""
 		}
-		return strings.TrimSpace(cell), "", false, ""
+		cell = strings.TrimSpace(cell)
+		if i := strings.LastIndexByte(cell, '('); i > 0 && strings.HasSuffix(cell, ")") {
+			u := strings.TrimSpace(cell[i+1 : len(cell)-1])
+			if _, ok := accelUnits[u]; ok || timeUnits[u] > 0 {
+				return strings.TrimSpace(cell[:i]), u, true, ""
+			}
+		}
+		return cell, "", false, ""
 	}
 	rest := strings.TrimSpace(cell[open+1:])
 	if !strings.HasSuffix(rest, "]") {
@@ -225,22 +234,11 @@ func parseHeader(path string, lineNo int, line []byte, delim byte) (*header, err
 	return h, nil
 }
 
-// unitHint suggests a fix for a name that carries its unit in parentheses.
-func unitHint(name string) string {
-	if i := strings.LastIndexByte(name, '('); i >= 0 && strings.HasSuffix(name, ")") {
-		u := strings.TrimSpace(name[i+1 : len(name)-1])
-		if _, ok := accelUnits[u]; ok {
-			return fmt.Sprintf("; the name ends in (%s): if that is the unit, write it as [%s]", u, u)
-		}
-	}
-	return ""
-}
-
 func knownUnitsList(time bool) string {
 	if time {
 		return "s, ms"
 	}
-	return "m/s^2 (m/s2, m/s²), mm/s^2, g"
+	return "m/s^2 (m/s2, m/s², m s^-2), mm/s^2, g"
 }
 
 // validUTF8 reports whether b is valid UTF-8 (for notes and the header).

@@ -66,7 +66,7 @@ const (
 func Open(path string, opt Options) (*Reader, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, err
+		return nil, fmt.Errorf("cannot read the log: %w", err)
 	}
 	size := int64(-1)
 	if st, err := f.Stat(); err == nil && st.Mode().IsRegular() {
@@ -228,7 +228,7 @@ func newReader(rd io.Reader, name string, size int64, opt Options) (*Reader, err
 	}
 	if !r.info.HasTime && !(opt.SampleRateHz > 0) {
 		return nil, r.errLine(r.info.HeaderLine, ErrNoSampleRate,
-			"the log has no time column (first column named time or t); give the sample rate (setup [analysis]) or add a time column")
+			"the log has no time column (first column named time or t); give its sample rate with --rate or sample_rate_hz in the setup's [analysis], or add a time column")
 	}
 	r.detectDecimal()
 	return r, nil
@@ -319,7 +319,7 @@ func (r *Reader) selectChannels(h *header) error {
 		}
 		if !h.hasUnit[i] {
 			r.warnings = append(r.warnings, Warning{Code: WarnUnitMissing, Channel: name, Line: r.info.HeaderLine,
-				Message: "no [unit] in the header: m/s^2 assumed" + unitHint(name)})
+				Message: "no [unit] in the header: m/s^2 assumed"})
 		}
 		c.Requested = true
 		r.slot[i] = int32(k)
@@ -357,8 +357,12 @@ func (r *Reader) missingChannel(name string) error {
 		if !c.Time {
 			have = append(have, c.Name)
 		}
-		if strings.EqualFold(c.Name, name) || strings.EqualFold(strings.ReplaceAll(c.Name, " ", "_"), name) {
+		switch {
+		case strings.EqualFold(c.Name, name) || strings.EqualFold(strings.ReplaceAll(c.Name, " ", "_"), name):
 			hint = fmt.Sprintf("; did you mean %q? (names match exactly)", c.Name)
+		case strings.HasPrefix(c.Name, name+" (") || strings.HasPrefix(c.Name, name+"("):
+			hint = fmt.Sprintf("; if %q is this channel with its unit, write the unit in brackets after the name, "+
+				"e.g. \"%s [m/s^2]\" (units: %s)", c.Name, name, knownUnitsList(false))
 		}
 	}
 	return &ParseError{Path: r.info.Path, Line: r.info.HeaderLine, ColumnIndex: -1, Column: name, Kind: ErrMissingChannel,
@@ -403,7 +407,7 @@ func (r *Reader) detectDecimal() {
 // consume stops the stream and is returned as is. Stream can be called once.
 func (r *Reader) Stream(consume func(b Block) error) (Summary, error) {
 	if r.streamed {
-		return Summary{}, errors.New("ingest: Stream called twice on one Reader")
+		return Summary{}, errors.New("Stream called twice on one Reader")
 	}
 	r.streamed = true
 	st := newStreamer(r, consume)

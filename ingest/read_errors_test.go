@@ -93,7 +93,6 @@ func TestBadInputs(t *testing.T) {
 		{"window before the log", hdr + uniform(10), Options{StartS: -1}, ErrWindow, 0, "", "before the log"},
 		{"window reversed", hdr + uniform(10), Options{StartS: 2, EndS: 1}, ErrWindow, 0, "", "not after its start"},
 		{"window after the log", hdr + uniform(100), Options{StartS: 5}, ErrWindow, 0, "", "after the log's last sample"},
-		{"window ends after the log", hdr + uniform(100), Options{StartS: 0.5, EndS: 3}, ErrWindow, 0, "", "ends at 3 s"},
 		{"window between samples", hdr + uniform(100), Options{StartS: 0.501, EndS: 0.509}, ErrWindow, 0, "", "holds no sample"},
 		{"blank line inside", hdr + "0,1,2\n0.01,1,2\n\n  \n0.02,1,2\n", Options{}, ErrBlankLine, 4, "", "line 6"},
 		{"decimal point in a comma log", "t [s];a [g]\n0;1,5\n0,01;2.5\n", Options{}, ErrDecimal, 3, "a", "decimal point"},
@@ -158,5 +157,21 @@ func TestTrailingBlankLines(t *testing.T) {
 	l := mustRead(t, hdr+uniform(10)+"\n\n \r\n", Options{})
 	if l.Summary.Samples != 10 {
 		t.Errorf("%d samples", l.Summary.Samples)
+	}
+}
+
+// TestEndPastTheLogClamps: a window whose end lies after the log's last
+// sample reads to the end of the log, with a warning that names --end.
+func TestEndPastTheLogClamps(t *testing.T) {
+	l := mustRead(t, hdr+uniform(100), Options{StartS: 0.5, EndS: 3})
+	if l.Summary.Samples != 50 {
+		t.Errorf("%d samples, want the 50 from 0.5 s to the end", l.Summary.Samples)
+	}
+	var found bool
+	for _, w := range l.Summary.Warnings {
+		found = found || (w.Code == WarnEndClamped && strings.Contains(w.Message, "3 s (--end)"))
+	}
+	if !found {
+		t.Errorf("no end_clamped warning: %v", l.Summary.Warnings)
 	}
 }

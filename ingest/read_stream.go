@@ -262,7 +262,7 @@ func (s *streamer) checkStep(t float64, line int) error {
 	step := t - s.prevT
 	if step > 1.5*s.dt {
 		return r.errAt(line, 0, ErrNonUniform,
-			"time %s is %s after the previous sample, a gap of about %.0f steps of %s: samples missing? (the Resample option bridges gaps by linear interpolation)",
+			"time %s is %s after the previous sample, a gap of about %.0f steps of %s: samples missing? (--resample bridges gaps by linear interpolation)",
 			fmtS(t), fmtS(step), step/s.dt, fmtS(s.dt))
 	}
 	accepted := "at most 1 % is accepted"
@@ -278,7 +278,7 @@ func (s *streamer) checkStep(t float64, line int) error {
 			fmtS(u))
 	}
 	return r.errAt(line, 0, ErrNonUniform,
-		"time %s is %s after the previous sample, where the log's step is %s (%.1f %% off; %s); the Resample option interpolates such a log onto a uniform grid",
+		"time %s is %s after the previous sample, where the log's step is %s (%.1f %% off; %s); --resample interpolates such a log onto a uniform grid",
 		fmtS(t), fmtS(step), fmtS(s.dt), 100*off/s.dt, accepted)
 }
 
@@ -510,12 +510,14 @@ func (s *streamer) finish() (Summary, error) {
 	}
 	half := 0.5 / fs
 	if s.startS > span+half {
-		return Summary{}, r.errLine(0, ErrWindow, "the window starts at %g s, after the log's last sample at %s (times count from the first sample)",
+		return Summary{}, r.errLine(0, ErrWindow, "the window starts at %g s (--start), after the log's last sample at %s (times count from the first sample)",
 			s.startS, fmtS(span))
 	}
+	var clamped []Warning
 	if s.endS > span+half {
-		return Summary{}, r.errLine(0, ErrWindow, "the window ends at %g s, after the log's last sample at %s (times count from the first sample)",
-			s.endS, fmtS(span))
+		clamped = append(clamped, Warning{Code: WarnEndClamped, Message: fmt.Sprintf(
+			"the window's end, %g s (--end), lies after the log's last sample at %s (times count from the first sample): analysed to the end of the log",
+			s.endS, fmtS(span))})
 	}
 	if s.nOut == 0 {
 		return Summary{}, r.errLine(0, ErrWindow, "the window %g s to %g s holds no sample", s.startS, s.endS)
@@ -545,6 +547,7 @@ func (s *streamer) finish() (Summary, error) {
 		sum.Channels = append(sum.Channels, st.result(r.info.Channels[k]))
 	}
 	sum.Warnings = append(sum.Warnings, r.warnings...)
+	sum.Warnings = append(sum.Warnings, clamped...)
 	sum.Warnings = append(sum.Warnings, s.logWarnings(fs)...)
 	for k, q := range s.quality {
 		sum.Warnings = append(sum.Warnings, q.finish(s.stats[k], fs)...)
@@ -576,7 +579,7 @@ func (s *streamer) logWarnings(fs float64) []Warning {
 		}
 	} else if s.hasTime && s.opt.SampleRateHz > 0 && math.Abs(fs-s.opt.SampleRateHz) > jitterTolerance*s.opt.SampleRateHz {
 		w = append(w, Warning{Code: WarnRateMismatch, Message: fmt.Sprintf(
-			"the time column gives %.6g Hz, the setup %.6g Hz; the time column is used", fs, s.opt.SampleRateHz)})
+			"the time column gives %.6g Hz, the given sample rate (--rate or the setup's sample_rate_hz) %.6g Hz; the time column is used", fs, s.opt.SampleRateHz)})
 	}
 	if b := s.opt.BandHighHz; b > 0 && fs < 2.56*b {
 		msg := fmt.Sprintf("sample rate %.6g Hz is under 2.56 times the band's upper edge %g Hz (%.6g Hz)", fs, b, 2.56*b)

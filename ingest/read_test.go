@@ -147,7 +147,8 @@ func TestUnits(t *testing.T) {
 		unit  string
 		scale float64
 	}{
-		{"m/s^2", 1}, {"m/s2", 1}, {"m/s²", 1}, {"mm/s^2", 1e-3}, {"mm/s2", 1e-3}, {"g", 9.80665}, {"G", 9.80665},
+		{"m/s^2", 1}, {"m/s2", 1}, {"m/s²", 1}, {"m s^-2", 1}, {"m s-2", 1}, {"mm/s^2", 1e-3}, {"mm/s2", 1e-3},
+		{"g", 9.80665}, {"G", 9.80665},
 	}
 	for _, c := range cases {
 		in := fmt.Sprintf("time [s],a [%s],b\n0,2,1\n0.01,-4,2\n", c.unit)
@@ -181,10 +182,17 @@ func TestUnits(t *testing.T) {
 	if strings.Join(codes, ",") != "Time,a" {
 		t.Errorf("unit_missing warnings for %v, want Time and a", codes)
 	}
-	// a unit in parentheses is hinted at
-	l = mustRead(t, "t [s],accel (g)\n0,1\n1,2\n", Options{})
-	if w := l.Summary.Warnings; len(w) == 0 || !strings.Contains(w[0].Message, "write it as [g]") {
-		t.Errorf("no hint for (g): %v", w)
+	// a known unit in parentheses is read like one in brackets; other
+	// parentheses belong to the name, and a channel asked for by the name
+	// before them gets advice on where the unit goes
+	l = mustRead(t, "t (ms),accel (g),pan (front) [m/s^2]\n0,1,1\n1,2,2\n", Options{})
+	if c := l.Info.Columns; c[1].Name != "accel" || c[1].Scale != 9.80665 || c[0].Scale != 1e-3 || c[2].Name != "pan (front)" ||
+		len(l.Summary.Warnings) != 0 {
+		t.Errorf("units in parentheses: %+v, %v", c, l.Summary.Warnings)
+	}
+	_, err := readString("t [s],accel (furlongs)\n0,1\n1,2\n", Options{Channels: []string{"accel"}})
+	if err == nil || !strings.Contains(err.Error(), `write the unit in brackets after the name, e.g. "accel [m/s^2]"`) {
+		t.Errorf("unknown unit in parentheses: %v", err)
 	}
 }
 

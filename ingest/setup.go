@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"regexp"
+	"slices"
 	"strings"
 
 	"github.com/pelletier/go-toml/v2"
@@ -365,6 +366,9 @@ func (v *validator) setup(raw *rawSetup) *Setup {
 		"the front axle's damping in N s/m")
 	vs.RearDampingNsPerM = v.nonNegative(rv.RearDampingNsPerM, "vehicle", "rear_damping_ns_per_m",
 		"the rear axle's damping in N s/m")
+	if v.err == nil {
+		v.plausibleVehicle(rv, vs)
+	}
 
 	seen := map[string]string{}
 	channel := func(p *string, key string) string {
@@ -442,7 +446,7 @@ func (v *validator) setup(raw *rawSetup) *Setup {
 		}
 		if ra.Window != nil {
 			a.Window = *ra.Window
-			if !KnownWindow(a.Window) {
+			if _, _, ok := WindowName(a.Window); !ok {
 				v.fail("analysis.window", "analysis.window", "unknown window %q; use one of %s",
 					a.Window, strings.Join(Windows, ", "))
 			}
@@ -568,14 +572,21 @@ const (
 // identify maps them to spectral windows).
 var Windows = []string{"hann", "hamming", "flattop", "rectangular"}
 
-// KnownWindow reports whether name is in Windows.
-func KnownWindow(name string) bool {
-	for _, w := range Windows {
-		if w == name {
-			return true
-		}
+// windowSpellings maps other common spellings of the windows to their
+// names in Windows.
+var windowSpellings = map[string]string{"hanning": "hann"}
+
+// WindowName returns the name in Windows that name stands for: name itself,
+// or the name of another common spelling ("hanning" is the Hann window)
+// with a note that says so; ok is false for an unknown window.
+func WindowName(name string) (canonical, note string, ok bool) {
+	if slices.Contains(Windows, name) {
+		return name, "", true
 	}
-	return false
+	if c, found := windowSpellings[name]; found {
+		return c, fmt.Sprintf("window %q is read as %q, the name used here; write %q to drop this note", name, c, c), true
+	}
+	return "", "", false
 }
 
 // SensorPositionsM returns the sensors' x_m in their order.

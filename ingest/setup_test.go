@@ -52,6 +52,10 @@ func TestParseGoodSetup(t *testing.T) {
 	if math.Abs(s.Vehicle.PitchInertiaKgm2-1400*1.44) > 1e-9 {
 		t.Fatalf("J = %g, want m r^2 = %g", s.Vehicle.PitchInertiaKgm2, 1400*1.44)
 	}
+	// "hanning" is another spelling of the Hann window (job notes it).
+	if _, err := ParseSetup("car.toml", []byte(goodSetup+"\n[analysis]\nwindow = \"hanning\"\n")); err != nil {
+		t.Error(err)
+	}
 	// A drop-test setup has no [[input]].
 	drop := goodSetup[:strings.Index(goodSetup, "[[input]]")]
 	if _, err := ParseSetup("drop.toml", []byte(drop)); err != nil {
@@ -96,6 +100,16 @@ func TestParseBadSetups(t *testing.T) {
 		{"segment not a power of two", []edit{{"[[input]]\nchannel = \"pf\"", "[analysis]\nsegment_samples = 1000\n\n[[input]]\nchannel = \"pf\""}}, 18, "analysis.segment_samples", "power of two"},
 		{"odd model order", []edit{{"[[input]]\nchannel = \"pf\"", "[analysis]\nmax_model_order = 7\n\n[[input]]\nchannel = \"pf\""}}, 18, "analysis.max_model_order", "even"},
 		{"binary garbage", []edit{{"mass_kg = 1400", "mass_kg = 14\x0000"}}, 0, "", "binary"},
+		// plausibility: what the number probably meant (bounds in plausible.go)
+		{"rate in kN/m", []edit{{"front_rate_n_per_m = 40000", "front_rate_n_per_m = 40"}}, 6, "vehicle.front_rate_n_per_m", "did you mean 40000 (40 kN/m, or 40 N/mm)?"},
+		{"mass in t", []edit{{"mass_kg = 1400", "mass_kg = 1.4"}}, 2, "vehicle.mass_kg", "did you mean 1400 (1.4 t)?"},
+		{"inertia in t m^2", []edit{{"pitch_inertia_kgm2 = 2000", "pitch_inertia_kgm2 = 2"}}, 3, "vehicle.pitch_inertia_kgm2", "did you mean 2000 (2 t m^2)?"},
+		{"radius in mm", []edit{{"pitch_inertia_kgm2 = 2000", "radius_of_gyration_m = 1200"}}, 3, "vehicle.radius_of_gyration_m", "did you mean 1.2 (1200 mm)?"},
+		{"b in cm", []edit{{"cg_to_rear_axle_m = 1.5", "cg_to_rear_axle_m = 150"}}, 5, "vehicle.cg_to_rear_axle_m", "did you mean 1.5 (150 cm)?"},
+		{"motion ratio in percent", []edit{{"front_rate_n_per_m = 40000", "front_spring_rate_n_per_m = 80000\nfront_motion_ratio_spring_per_wheel = 70"}}, 7, "vehicle.front_motion_ratio_spring_per_wheel", "did you mean 0.7 (70 %)?"},
+		{"damping in kN s/m", []edit{{"rear_rate_n_per_m = 45000", "rear_rate_n_per_m = 45000\nfront_damping_ns_per_m = 3\nrear_damping_ns_per_m = 3000"}}, 8, "vehicle.front_damping_ns_per_m", "did you mean 3000 (3 kN s/m"},
+		{"overdamped axle", []edit{{"rear_rate_n_per_m = 45000", "rear_rate_n_per_m = 45000\nfront_damping_ns_per_m = 3000\nrear_damping_ns_per_m = 300000"}}, 9, "vehicle.rear_damping_ns_per_m", "far above any car's damping"},
+		{"one damper", []edit{{"rear_rate_n_per_m = 45000", "rear_rate_n_per_m = 45000\nrear_damping_ns_per_m = 3000"}}, 8, "vehicle.front_damping_ns_per_m", "rear_damping_ns_per_m is given but front_damping_ns_per_m is not"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

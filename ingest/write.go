@@ -36,7 +36,7 @@ func WriteLog(w io.Writer, notes []string, rateHz, t0S float64, cols []LogColumn
 		}
 		s, ok := accelUnits[c.Unit]
 		if !ok {
-			return fmt.Errorf("ingest: unknown unit %q for column %q", c.Unit, c.Name)
+			return fmt.Errorf("unknown unit %q for column %q", c.Unit, c.Name)
 		}
 		scale[i] = s
 	}

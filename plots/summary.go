@@ -28,6 +28,15 @@ func pm(format string, v *float64, sd *float64) string {
 
 func ptr(x float64) *float64 { return &x }
 
+// measuredZeta is a measured mode's damping ratio, nil when none was
+// measured (0 in a hand-written modes file, see compare.MeasuredFromJSON).
+func measuredZeta(m compare.ModeJSON) *float64 {
+	if m.DampingRatio == 0 {
+		return nil
+	}
+	return &m.DampingRatio
+}
+
 // WriteSummary writes the text summary of an analyze or compare result, as
 // the terminal shows it: measured modes beside the model, the rates that
 // make the model match, the checks, the verdict and the warnings.
@@ -59,7 +68,7 @@ func WriteSummary(w io.Writer, res *compare.Result) {
 		if m.Flagged {
 			label += " FLAGGED" // the data cannot support it: see the warnings
 		}
-		row := []string{label, pm("%.4f", ptr(m.NaturalFrequencyHz), sdF), pm("%.3f", ptr(m.DampingRatio), sdZ),
+		row := []string{label, pm("%.4f", ptr(m.NaturalFrequencyHz), sdF), pm("%.3f", measuredZeta(m), sdZ),
 			pm("%+.3f", m.NodeM, sdN), pm("%+.4f", m.PitchPerBounceRadPerM, sdP), "|"}
 		if p, ok := model[m.Label]; ok {
 			row = append(row, fmt.Sprintf("%.4f", p.NaturalFrequencyHz), fmt.Sprintf("%.3f", p.DampingRatio), pm("%+.3f", p.NodeM, nil))
@@ -155,7 +164,7 @@ func writeRuns(w io.Writer, res *compare.Result) {
 		for _, m := range r.Modes {
 			u := m.Uncertainty
 			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", r.Log.Path, m.Label, pm("%.4f", ptr(m.NaturalFrequencyHz), ptr(u.NaturalFrequencyHz)),
-				pm("%.3f", ptr(m.DampingRatio), ptr(u.DampingRatio)), pm("%+.3f", m.NodeM, u.NodeM))
+				pm("%.3f", measuredZeta(m), ptr(u.DampingRatio)), pm("%+.3f", m.NodeM, u.NodeM))
 		}
 	}
 	tw.Flush()

@@ -8,7 +8,6 @@ import (
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/compare/store"
-	"github.com/ridemodes/ridemodes/ingest"
 	"github.com/ridemodes/ridemodes/plots"
 )
 
@@ -37,15 +36,17 @@ inverse-variance weighted mean of the runs, and a chi-square test checks that
 the runs agree; a run that disagrees is named and the pooled uncertainty is
 widened. Three drops pin a node about 1/sqrt(3) as tightly as one.
 
-It prints a summary; --json writes the result (the contract's keys), --report
-writes an HTML report with figures into a folder, --store records the run in a
-campaign store (see history). Choices (band, resolution, model order) are made
-from the data, with their reasons in the result; each can be overridden by a
-flag or the setup's [analysis] table. Ctrl-C stops the run and leaves no
-output file behind.
+It prints a summary; --json writes the result (JSON, keys as in the README),
+--report writes an HTML report with figures into a folder, --store records
+the run in a campaign store (see history). Choices (band, resolution, model
+order) are made from the data, with their reasons in the result; each can be
+overridden by a flag or by the key of the same name in the setup's [analysis]
+table (--segment-samples is segment_samples). Ctrl-C stops the run and leaves
+no output file behind.
 
 Exit codes: 0 done; 1 bad data or a failed analysis; 2 bad usage; 3 done, but
-a check in [targets] failed.
+a check in [targets] failed; 4 done, nothing failed, but a check is
+inconclusive.
 
 ` + compare.Cautions,
 		Example: `  ridemodes analyze rig.csv --setup car.toml
@@ -62,30 +63,43 @@ a check in [targets] failed.
 			if err != nil {
 				return libraryError(err)
 			}
-			plots.WriteSummary(cmd.OutOrStdout(), out.Result)
+			plots.WriteSummary(infoOut(cmd, jsonPath), out.Result)
 			if storeTarget != "" {
 				if err := store.RecordResult(cmd.Context(), storeTarget, out.Setup.Vehicle.Name, out.Result); err != nil {
 					return err
 				}
 			}
-			return writeOutcome(out, jsonPath, reportDir)
+			return writeOutcome(cmd, out, jsonPath, reportDir)
 		},
 	}
 	registerLogFlags(cmd, &o)
 	f := cmd.Flags()
-	f.StringVar(&jsonPath, "json", "", "write the result as JSON to this file")
-	f.StringVar(&reportDir, "report", "", "write an HTML report with figures into this folder")
-	f.StringVar(&storeTarget, "store", "", "record the run in a campaign store: an SQLite file or a postgres:// URL")
-	f.IntVar(&o.MaxModelOrder, "max-order", 0, "highest model order of the fit's sweep, even, at least 4 (default from [analysis], else the method's own)")
-	f.IntVar(&o.Event, "event", 0, "drop test: which release to analyse, counted from 0")
+	f.StringVar(&jsonPath, "json", "", "write the result as JSON to this `FILE` (- for standard output)")
+	f.StringVar(&reportDir, "report", "", "write an HTML report with figures into this `DIR`")
+	f.StringVar(&storeTarget, "store", "", "record the run in a campaign store: an SQLite `FILE` or a postgres:// URL")
+	f.IntVar(&o.MaxModelOrder, "max-model-order", 0, "highest model order `N` of the fit's sweep, even, at least 4 (default from [analysis] max_model_order, else the method's own)")
+	f.IntVar(&o.Event, "event", 0, "drop test: which release `N` to analyse, counted from 0")
+	deprecatedAlias(cmd, "max-order", "max-model-order", "named like the setup key max_model_order")
 	cmd.MarkFlagFilename("json", "json")
 	cmd.MarkFlagDirname("report")
 	return cmd
 }
 
+// writeResult writes a result's JSON to path, when one is given.
+func writeResult(cmd *cobra.Command, path string, res *compare.Result) error {
+	if path == "" {
+		return nil
+	}
+	data, err := res.Marshal()
+	if err != nil {
+		return err
+	}
+	return writeData(cmd, path, data)
+}
+
 // libraryError marks the library's option mistakes as usage errors (exit 2).
 func libraryError(err error) error {
-	var oe *job.OptionError
+	var oe *compare.OptionError
 	if errors.As(err, &oe) {
 		return usageError{err}
 	}
@@ -94,15 +108,9 @@ func libraryError(err error) error {
 
 // writeOutcome writes the JSON result and the report, each atomically, and
 // returns the verdict's error (exit code 3 or 4) when it is not a pass.
-func writeOutcome(o *job.Outcome, jsonPath, reportDir string) error {
-	if jsonPath != "" {
-		data, err := o.Result.Marshal()
-		if err != nil {
-			return err
-		}
-		if err := ingest.WriteFileAtomic(jsonPath, data); err != nil {
-			return err
-		}
+func writeOutcome(cmd *cobra.Command, o *job.Outcome, jsonPath, reportDir string) error {
+	if err := writeResult(cmd, jsonPath, o.Result); err != nil {
+		return err
 	}
 	if reportDir != "" {
 		if _, err := plots.WriteReport(reportDir, plots.OutcomeReport(o)); err != nil {

@@ -6,7 +6,6 @@ import (
 	"net/url"
 	"os"
 	"path/filepath"
-	"runtime"
 
 	"github.com/spf13/cobra"
 
@@ -55,13 +54,13 @@ is inconclusive (the most severe of the logs).
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&setupPath, "setup", "", "setup file (TOML) of every log given as an argument")
-	f.StringVar(&manifest, "manifest", "", "campaign manifest (CSV: log,setup,car,run, then metadata columns)")
-	f.StringVar(&test, "test", "", "rig or drop for every log (a manifest's test column wins; default: rig when the setup has [[input]] tables)")
-	f.StringVar(&outDir, "out", "ridemodes-batch", "output folder: results/, summary.csv, summary.jsonl")
-	f.IntVar(&workers, "workers", runtime.NumCPU(), "logs analysed at once (0: the number of cores)")
-	f.StringVar(&target, "store", "", "store of every run: an SQLite file or a postgres:// URL (default: campaign.sqlite under --out)")
-	f.StringVar(&shardText, "shard", "", "analyse only part I of N (1-based), every N-th log (default: from the scheduler's index variables)")
+	f.StringVar(&setupPath, "setup", "", "setup `FILE` (TOML) of every log given as an argument")
+	f.StringVar(&manifest, "manifest", "", "campaign manifest `FILE` (CSV: log,setup,car,run, then metadata columns)")
+	f.StringVar(&test, "test", "", "the `TEST`, rig or drop, of every log (a manifest's test column wins; default: rig when the setup has [[input]] tables)")
+	f.StringVar(&outDir, "out", "ridemodes-batch", "output `DIR`: results/, summary.csv, summary.jsonl, report/")
+	f.IntVar(&workers, "workers", 0, "`N` logs analysed at once (default: the number of cores)")
+	f.StringVar(&target, "store", "", "store of every run: an SQLite `FILE` or a postgres:// URL (default: campaign.sqlite under --out)")
+	f.StringVar(&shardText, "shard", "", "analyse only part `I/N` (1-based), every N-th log (default: from the scheduler's index variables)")
 	cmd.MarkFlagsMutuallyExclusive("setup", "manifest")
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.MarkFlagFilename("manifest", "csv")

@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -104,13 +105,13 @@ func TestExitCodesAndNoLeftovers(t *testing.T) {
 		{[]string{"model", "--setup", exampleSetup, "extra"}, exitUsage, "unknown command"},
 		{[]string{"model", "--setup", exampleSetup, "--colour"}, exitUsage, "unknown flag"},
 		{[]string{"frobnicate"}, exitUsage, "unknown command"},
-		{[]string{"simulate", "--setup", exampleSetup, "--test", "crash", "--out", out}, exitUsage, "--test must be"},
+		{[]string{"simulate", "--setup", exampleSetup, "--test", "crash", "--out", out}, exitUsage, `--test takes "rig" or "drop"`},
 		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", out, "--rear-delay", "0.5"}, exitUsage, "does not apply to a rig test"},
 		{[]string{"simulate", "--setup", exampleSetup, "--test", "drop", "--out", out, "--drive", "sweep"}, exitUsage, "does not apply to a drop test"},
 		{[]string{"model", "--setup", bad}, exitData, "bad.toml:2: vehicle.mass_kg"},
 		{[]string{"model", "--setup", filepath.Join(dir, "missing.toml")}, exitData, "cannot read"},
-		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", out, "--rate", "-5"}, exitData, "sample rate"},
-		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", filepath.Join(dir, "no", "such", "dir.csv")}, exitData, "cannot write"},
+		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", out, "--rate", "-5"}, exitUsage, "--rate takes the sample rate"},
+		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", filepath.Join(bad, "dir.csv")}, exitData, "cannot write"},
 	}
 	for _, c := range cases {
 		code, _, errs := run(t, c.args...)
@@ -146,13 +147,17 @@ func TestHelpCarriesCautions(t *testing.T) {
 	}
 }
 
+// TestDemo runs the demo, checks what it found, reruns the simulate
+// commands it printed (item 9: they give its logs byte for byte), reruns it
+// into the same folder (it replaces its own files: the campaign store holds
+// six runs, not twelve) and refuses a folder with a file it did not write.
 func TestDemo(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "demo")
 	code, out, errs := run(t, "demo", "--out", dir)
 	if code != exitOK {
 		t.Fatalf("demo: exit %d\n%s\n%s", code, out, errs)
 	}
-	for _, f := range []string{"design.toml", "built.toml", "rig.csv", "drop.csv",
+	for _, f := range []string{"design.toml", "built.toml", "built-respring.toml", "rig.csv", "drop.csv",
 		"result.json", "drop-result.json", "report/report.html", "drop-report/report.html"} {
 		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
 			t.Errorf("demo did not write %s", f)
@@ -188,9 +193,21 @@ func TestDemo(t *testing.T) {
 	if !strings.Contains(string(page), `data-verdict="fail"`) || !strings.Contains(string(page), "Rear ride rate") {
 		t.Error("the demo's rig report does not state the failed rear ride rate in its verdict")
 	}
-	// A second run into the same folder refuses to overwrite it.
-	if code, _, errs := run(t, "demo", "--out", dir); code != exitUsage || !strings.Contains(errs, "not empty") {
-		t.Errorf("second demo: exit %d, %s", code, errs)
+	simulates := checkPrintedSimulates(t, out)
+	if simulates != 8 || !strings.Contains(out, "$ ridemodes analyze "+filepath.Join(dir, "rig.csv")) {
+		t.Errorf("the demo printed %d simulate commands, want 8 (2 logs and 6 campaign runs), and the analyze ones:\n%s", simulates, out)
+	}
+	if code, _, errs := run(t, "demo", "--out", dir); code != exitOK {
+		t.Fatalf("demo again: exit %d, %s", code, errs)
+	}
+	_, table, _ := run(t, "history", "--store", filepath.Join(dir, "campaign", "campaign.sqlite"), "--json", "-")
+	var campaign struct{ Runs []any }
+	if err := json.Unmarshal([]byte(table), &campaign); err != nil || len(campaign.Runs) != 6 {
+		t.Errorf("after a rerun the store holds %d runs, want 6 (%v)", len(campaign.Runs), err)
+	}
+	writeText(t, filepath.Join(dir, "notes.txt"), "mine")
+	if code, _, errs := run(t, "demo", "--out", dir); code != exitUsage || !strings.Contains(errs, "notes.txt, which the demo did not write") {
+		t.Errorf("demo into a folder with a user's file: exit %d, %s", code, errs)
 	}
 }
 
@@ -273,4 +290,35 @@ func TestOneSetupForBothTests(t *testing.T) {
 	if code, _, errs := run(t, "analyze", logPath, "--setup", exampleSetup, "--test", "bench"); code != exitUsage {
 		t.Errorf("--test bench: exit %d, %s", code, errs)
 	}
+}
+
+// checkPrintedSimulates reruns the demo's printed simulate commands for the
+// drop log and one campaign run: they must give the demo's logs byte for
+// byte. It returns how many simulate commands the demo printed.
+func checkPrintedSimulates(t *testing.T, out string) (simulates int) {
+	t.Helper()
+	for _, line := range strings.Split(out, "\n") {
+		cmdline, ok := strings.CutPrefix(line, "$ ridemodes ")
+		if !ok || !strings.HasPrefix(cmdline, "simulate") {
+			continue
+		}
+		simulates++
+		args := strings.Fields(cmdline)
+		i := slices.Index(args, "--out")
+		if !strings.HasSuffix(args[i+1], "drop.csv") && !strings.HasSuffix(args[i+1], "run-4.csv") {
+			continue // the long rig logs are made the same way
+		}
+		want, err := os.ReadFile(args[i+1])
+		if err != nil {
+			t.Fatal(err)
+		}
+		args[i+1] = filepath.Join(t.TempDir(), "again.csv")
+		if code, _, errs := run(t, args...); code != exitOK {
+			t.Fatalf("%s: exit %d, %s", cmdline, code, errs)
+		}
+		if got, _ := os.ReadFile(args[i+1]); !bytes.Equal(got, want) {
+			t.Errorf("%s does not give the demo's log", cmdline)
+		}
+	}
+	return simulates
 }

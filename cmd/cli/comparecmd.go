@@ -28,7 +28,8 @@ A hand-written modes file needs, per mode, "label" (bounce or pitch) and
 "natural_frequency_hz"; "damping_ratio", "pitch_per_bounce_rad_per_m" or
 "node_m", and "uncertainty" are optional and used when given.
 
-Exit codes: 0 done; 1 bad data; 2 bad usage; 3 done, but a target failed.`,
+Exit codes: 0 done; 1 bad data; 2 bad usage; 3 done, but a target failed;
+4 done, nothing failed, but a check is inconclusive.`,
 		Example: `  ridemodes compare --modes result.json --setup car.toml
   ridemodes compare --modes measured.json --setup car-v2.toml --json compared.json`,
 		Args: usageArgs(cobra.NoArgs),
@@ -52,22 +53,16 @@ Exit codes: 0 done; 1 bad data; 2 bad usage; 3 done, but a target failed.`,
 			if err := res.AssessAgainst(setup); err != nil {
 				return fmt.Errorf("%s: %w", modesPath, err)
 			}
-			plots.WriteSummary(cmd.OutOrStdout(), res)
-			if jsonPath != "" {
-				data, err := res.Marshal()
-				if err != nil {
-					return err
-				}
-				if err := ingest.WriteFileAtomic(jsonPath, data); err != nil {
-					return err
-				}
+			plots.WriteSummary(infoOut(cmd, jsonPath), res)
+			if err := writeResult(cmd, jsonPath, res); err != nil {
+				return err
 			}
 			return verdictError(res.Verdict.Status)
 		},
 	}
-	cmd.Flags().StringVar(&modesPath, "modes", "", "measured modes: an analyze result or a file with a \"modes\" array (JSON)")
-	cmd.Flags().StringVar(&setupPath, "setup", "", "setup file (TOML) with the design model and targets")
-	cmd.Flags().StringVar(&jsonPath, "json", "", "write the result as JSON to this file")
+	cmd.Flags().StringVar(&modesPath, "modes", "", "measured modes `FILE`: an analyze result or a file with a \"modes\" array (JSON)")
+	cmd.Flags().StringVar(&setupPath, "setup", "", "setup `FILE` (TOML) with the design model and targets")
+	cmd.Flags().StringVar(&jsonPath, "json", "", "write the result as JSON to this `FILE` (- for standard output)")
 	cmd.MarkFlagRequired("modes")
 	cmd.MarkFlagRequired("setup")
 	cmd.MarkFlagFilename("modes", "json")

@@ -4,16 +4,17 @@ import (
 	"embed"
 	"errors"
 	"fmt"
-	"io"
 	"os"
 	"path/filepath"
-	"runtime"
+	"regexp"
+	"slices"
+	"strconv"
+	"strings"
 
 	"github.com/spf13/cobra"
 
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/compare/batch"
-	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/compare/simulate"
 	"github.com/ridemodes/ridemodes/ingest"
 	"github.com/ridemodes/ridemodes/plots"
@@ -35,6 +36,7 @@ const (
 	demoRigNoise     = 0.05
 	demoDropNoise    = 0.02
 	demoSeed         = 20261201
+	demoCampaignRuns = 6
 )
 
 func newDemoCmd() *cobra.Command {
@@ -42,12 +44,14 @@ func newDemoCmd() *cobra.Command {
 	cmd := &cobra.Command{
 		Use:   "demo [--out DIR]",
 		Short: "Run the whole job on an invented example car, report included",
-		Long: `demo writes an invented scenario into a new folder and runs the whole job on it:
+		Long: `demo writes an invented scenario into a folder and runs the whole job on it:
 the design setup of a prototype hatchback, a rig log and a drop log simulated
 from the car as it was built (stiffer rear springs and softer dampers than the
 design says, with sensor noise), then analyze on both logs with the JSON results
-and HTML reports. Open report/report.html afterwards; rerun the commands it
-prints to try the options.
+and HTML reports, and a small campaign through batch. It prints every command
+it runs (simulate, analyze, batch): rerun them to try the options. Open
+report/report.html afterwards. Run again into the same folder, it replaces
+its own files; a folder holding anything else is refused.
 
 The scenario is made up; its logs are synthetic, not measurements. The demo
 exits 0 when the whole job ran; the verdicts against the setup's targets are
@@ -61,13 +65,25 @@ in its output and results (analyze exits 3 or 4 on them).
 			return runDemo(cmd, outDir)
 		},
 	}
-	cmd.Flags().StringVar(&outDir, "out", "ridemodes-demo", "folder to create for the demo (must be new or empty)")
+	cmd.Flags().StringVar(&outDir, "out", "ridemodes-demo", "`DIR` for the demo: new, empty, or one an earlier demo wrote (its files are replaced)")
 	cmd.MarkFlagDirname("out")
 	return cmd
 }
 
-// prepareDemoDir creates dir, which must be new or empty, so the demo never
-// overwrites a user's files.
+// demoOwnNames lists what the demo writes into its folder, so that a rerun
+// replaces it and touches nothing else.
+func demoOwnNames() []string {
+	names := []string{"design.toml", "built.toml", "built-respring.toml", "rig.csv", "drop.csv", "result.json",
+		"drop-result.json", "report", "drop-report", "campaign.csv", "campaign"}
+	for i := range demoCampaignRuns {
+		names = append(names, fmt.Sprintf("run-%d.csv", i+1))
+	}
+	return names
+}
+
+// prepareDemoDir creates dir, or accepts one that holds only what an
+// earlier demo wrote (its campaign store is removed, so the rerun's store
+// holds its own runs only): the demo never touches a user's files.
 func prepareDemoDir(dir string) error {
 	entries, err := os.ReadDir(dir)
 	switch {
@@ -75,14 +91,59 @@ func prepareDemoDir(dir string) error {
 		return os.MkdirAll(dir, 0o755)
 	case err != nil:
 		return err
-	case len(entries) > 0:
-		return usageError{fmt.Errorf("%s is not empty; give --out a new or empty folder", dir)}
+	}
+	for _, e := range entries {
+		if !slices.Contains(demoOwnNames(), e.Name()) {
+			return usageError{fmt.Errorf("%s holds %s, which the demo did not write; give --out a new or empty folder, "+
+				"or one an earlier demo wrote", dir, e.Name())}
+		}
+	}
+	for _, suffix := range []string{"", "-wal", "-shm"} {
+		if err := os.Remove(filepath.Join(dir, "campaign", "campaign.sqlite"+suffix)); err != nil && !errors.Is(err, os.ErrNotExist) {
+			return err
+		}
 	}
 	return nil
 }
 
+// runCommand prints a command line and runs it as the user would type it,
+// its output on cmd's; a verdict other than a pass (exit 3 or 4) is the
+// demo's output, not its failure.
+func runCommand(cmd *cobra.Command, args ...string) error {
+	fmt.Fprintf(cmd.OutOrStdout(), "\n$ ridemodes %s\n", shellWords(args))
+	root := NewRoot()
+	root.SetArgs(args)
+	root.SetOut(cmd.OutOrStdout())
+	root.SetErr(cmd.ErrOrStderr())
+	err := root.ExecuteContext(cmd.Context())
+	switch {
+	case errors.Is(err, errTargetsFailed):
+		fmt.Fprintf(cmd.OutOrStdout(), "\nThe finding: the car as built is not the car as designed. On this log %s exits %d (%v):\n"+
+			"a script or CI job stops there. The demo itself exits 0: it ran as it should.\n", args[0], exitTargets, errTargetsFailed)
+		return nil
+	case errors.Is(err, errInconclusive):
+		return nil
+	}
+	return err
+}
+
+// shellSafe matches a word a POSIX shell takes as it is.
+var shellSafe = regexp.MustCompile(`^[\w./:=+-]+$`)
+
+// shellWords joins args for a POSIX shell, quoting those that need it.
+func shellWords(args []string) string {
+	out := make([]string, len(args))
+	for i, a := range args {
+		out[i] = a
+		if !shellSafe.MatchString(a) {
+			out[i] = "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
+		}
+	}
+	return strings.Join(out, " ")
+}
+
 func runDemo(cmd *cobra.Command, dir string) error {
-	ctx, out := cmd.Context(), cmd.OutOrStdout()
+	out := cmd.OutOrStdout()
 	if err := prepareDemoDir(dir); err != nil {
 		return err
 	}
@@ -95,58 +156,36 @@ func runDemo(cmd *cobra.Command, dir string) error {
 			return err
 		}
 	}
-	built, err := ingest.LoadSetup(filepath.Join(dir, "built.toml"))
-	if err != nil {
+	if err := writeRespring(dir); err != nil {
 		return err
 	}
-	car := compare.DesignOf(built.Vehicle)
-
-	ro := simulate.Defaults("rig")
-	ro.DurationS, ro.NoiseFraction, ro.Units, ro.Seed = demoRigDurationS, demoRigNoise, simulate.UnitsMixed, demoSeed
-	rig, err := simulate.Rig(car, built.Sensors, built.Inputs, ro)
-	if err != nil {
-		return err
-	}
-	do := simulate.Defaults("drop")
-	do.NoiseFraction, do.Seed, do.RateHz = demoDropNoise, demoSeed, 500
-	drop, err := simulate.Drop(car, built.Sensors, do)
-	if err != nil {
-		return err
-	}
-	for name, log := range map[string]*simulate.Log{"rig.csv": rig, "drop.csv": drop} {
-		log.Notes = append(log.Notes, "test date 2026-02-27, HX-2 mule 3 as built (invented)")
-		if err := writeSimulated(filepath.Join(dir, name), log); err != nil {
-			return err
-		}
-	}
+	at := func(name string) string { return filepath.Join(dir, name) }
 	fmt.Fprintf(out, "ridemodes demo: an invented prototype, HX-2 mule 3, in %s\n", dir)
 	fmt.Fprintf(out, "  design.toml        the design model, sensors, rig inputs and targets: one setup for both tests\n")
 	fmt.Fprintf(out, "  rig.csv, drop.csv  logs simulated from the car as built (built.toml): rear rate +10 %%, dampers -20 %%\n")
-
+	fmt.Fprintf(out, "\n=== The logs, simulated from the car as built\n")
+	seed := strconv.Itoa(demoSeed)
+	for _, args := range [][]string{
+		{"simulate", "--setup", at("built.toml"), "--test", "rig", "--out", at("rig.csv"), "--duration", strconv.Itoa(demoRigDurationS),
+			"--noise", fmt.Sprint(demoRigNoise), "--units", simulate.UnitsMixed, "--seed", seed},
+		{"simulate", "--setup", at("built.toml"), "--test", "drop", "--out", at("drop.csv"), "--rate", "500",
+			"--noise", fmt.Sprint(demoDropNoise), "--seed", seed},
+	} {
+		if err := runCommand(cmd, args...); err != nil {
+			return err
+		}
+	}
 	for _, run := range []struct{ title, log, test, json, report string }{
 		{"Rig test", "rig.csv", "rig", "result.json", "report"},
 		{"Drop test", "drop.csv", "drop", "drop-result.json", "drop-report"},
 	} {
-		o := job.Options{LogPath: filepath.Join(dir, run.log), SetupPath: filepath.Join(dir, "design.toml"),
-			Test: run.test, ToolVersion: version()}
-		fmt.Fprintf(out, "\n=== %s: ridemodes analyze %s --setup %s --test %s --json %s --report %s\n\n",
-			run.title, o.LogPath, o.SetupPath, run.test, filepath.Join(dir, run.json), filepath.Join(dir, run.report))
-		res, err := job.Analyze(ctx, o)
-		if err != nil {
-			return err
-		}
-		plots.WriteSummary(out, res.Result)
-		if res.Verdict == compare.StatusFail {
-			fmt.Fprintf(out, "\nThe finding: the car as built is not the car as designed. On this log analyze exits %d (%v):\n"+
-				"a script or CI job stops there. The demo itself exits 0: it ran as it should.\n", exitTargets, errTargetsFailed)
-		}
-		// The demo shows verdicts; its exit code says only that it ran.
-		err = writeOutcome(res, filepath.Join(dir, run.json), filepath.Join(dir, run.report))
-		if err != nil && err != verdictError(res.Verdict) {
+		fmt.Fprintf(out, "\n=== %s\n", run.title)
+		if err := runCommand(cmd, "analyze", at(run.log), "--setup", at("design.toml"), "--test", run.test,
+			"--json", at(run.json), "--report", at(run.report)); err != nil {
 			return err
 		}
 	}
-	if err := demoCampaign(cmd, dir, car, built); err != nil {
+	if err := demoCampaign(cmd, dir); err != nil {
 		return err
 	}
 	fmt.Fprintf(out, "\nReports: %s, %s and the campaign's trend report %s\n", filepath.Join(dir, "report", "report.html"),
@@ -154,36 +193,54 @@ func runDemo(cmd *cobra.Command, dir string) error {
 	return nil
 }
 
-// writeSimulated writes a simulated log as CSV.
-func writeSimulated(path string, log *simulate.Log) error {
-	return ingest.WriteAtomic(path, func(w io.Writer) error {
-		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-	})
+// rearRateLine is the built setup's rear ride rate line; leadingComments
+// its opening comment, which describes the car before the change.
+var (
+	rearRateLine    = regexp.MustCompile(`(?m)^rear_rate_n_per_m\s*=.*$`)
+	leadingComments = regexp.MustCompile(`^(#[^\n]*\n)+`)
+)
+
+// writeRespring writes built-respring.toml: the car as built with its rear
+// springs changed back to the design rate, the car of the campaign's last
+// runs, and checks that it reads as that.
+func writeRespring(dir string) error {
+	design, err := ingest.LoadSetup(filepath.Join(dir, "design.toml"))
+	if err != nil {
+		return err
+	}
+	built, err := os.ReadFile(filepath.Join(dir, "built.toml"))
+	if err != nil {
+		return err
+	}
+	if !rearRateLine.Match(built) {
+		return errors.New("demo: built.toml gives no rear_rate_n_per_m line to change")
+	}
+	rate := design.Vehicle.RearRateNPerM
+	text := rearRateLine.ReplaceAll(built, []byte(fmt.Sprintf("rear_rate_n_per_m = %g  # back to the design rate after the spring change", rate)))
+	text = append([]byte("# ridemodes demo: the HX-2 mule 3 as built, after its rear springs were changed back to the\n"+
+		"# design rate: the car of the campaign's last three runs. Invented.\n"), leadingComments.ReplaceAll(text, nil)...)
+	path := filepath.Join(dir, "built-respring.toml")
+	if s, err := ingest.ParseSetup(path, text); err != nil || s.Vehicle.RearRateNPerM != rate {
+		return fmt.Errorf("demo: the changed setup does not read back with the design rear rate: %v", err)
+	}
+	return ingest.WriteFileAtomic(path, text)
 }
 
 // demoCampaign simulates six shorter rig runs of the car over two weeks,
 // the last three after its rear springs were changed back to the design
 // rate, writes their manifest and runs batch on it: the store and the trend
 // report then show the step.
-func demoCampaign(cmd *cobra.Command, dir string, car compare.Vehicle, built *ingest.Setup) error {
-	design, err := ingest.LoadSetup(filepath.Join(dir, "design.toml"))
-	if err != nil {
-		return err
-	}
+func demoCampaign(cmd *cobra.Command, dir string) error {
+	fmt.Fprintf(cmd.OutOrStdout(), "\n=== Campaign: six rig runs, the last three after a rear spring change\n")
 	manifest := "log,setup,car,run,test,date,notes\n"
-	for i := range 6 {
-		v, note := car, "as built"
-		if i >= 3 {
-			v.RearRateNPerM, note = design.Vehicle.RearRateNPerM, "after the rear spring change"
-		}
-		o := simulate.Defaults("rig")
-		o.DurationS, o.NoiseFraction, o.Seed = demoCampaignRunS, demoRigNoise, demoSeed+uint64(i)+1
-		log, err := simulate.Rig(v, built.Sensors, built.Inputs, o)
-		if err != nil {
-			return err
+	for i := range demoCampaignRuns {
+		setup, note := "built.toml", "as built"
+		if i >= demoCampaignRuns/2 {
+			setup, note = "built-respring.toml", "after the rear spring change"
 		}
 		name := fmt.Sprintf("run-%d.csv", i+1)
-		if err := writeSimulated(filepath.Join(dir, name), log); err != nil {
+		if err := runCommand(cmd, "simulate", "--setup", filepath.Join(dir, setup), "--test", "rig", "--out", filepath.Join(dir, name),
+			"--duration", strconv.Itoa(demoCampaignRunS), "--noise", fmt.Sprint(demoRigNoise), "--seed", strconv.Itoa(demoSeed+i+1)); err != nil {
 			return err
 		}
 		manifest += fmt.Sprintf("%s,design.toml,HX-2 mule 3,%d,rig,2026-03-%02d,%s\n", name, i+1, 2+2*i, note)
@@ -192,11 +249,5 @@ func demoCampaign(cmd *cobra.Command, dir string, car compare.Vehicle, built *in
 	if err := ingest.WriteFileAtomic(path, []byte(manifest)); err != nil {
 		return err
 	}
-	fmt.Fprintf(cmd.OutOrStdout(), "\n=== Campaign: six rig runs, the last three after a rear spring change: ridemodes batch --manifest %s --out %s\n\n",
-		path, filepath.Join(dir, "campaign"))
-	err = runBatch(cmd, nil, batchFlags{manifest: path, outDir: filepath.Join(dir, "campaign"), workers: runtime.NumCPU()})
-	if err != nil && !errors.Is(err, errTargetsFailed) && !errors.Is(err, errInconclusive) {
-		return err
-	}
-	return nil
+	return runCommand(cmd, "batch", "--manifest", path, "--out", filepath.Join(dir, "campaign"))
 }

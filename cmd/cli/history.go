@@ -1,10 +1,11 @@
 package cli
 
 import (
+	"io"
+
 	"github.com/spf13/cobra"
 
 	"github.com/ridemodes/ridemodes/compare/trend"
-	"github.com/ridemodes/ridemodes/ingest"
 	"github.com/ridemodes/ridemodes/plots"
 )
 
@@ -38,17 +39,17 @@ Without --car it shows every car of the store, as one campaign.`,
 			if err != nil {
 				return err
 			}
-			if err := c.WriteTable(cmd.OutOrStdout()); err != nil {
+			if err := c.WriteTable(infoOut(cmd, csvPath, jsonPath)); err != nil {
 				return err
 			}
-			if csvPath != "" {
-				if err := ingest.WriteAtomic(csvPath, c.WriteCSV); err != nil {
-					return err
-				}
-			}
-			if jsonPath != "" {
-				if err := ingest.WriteAtomic(jsonPath, c.WriteJSON); err != nil {
-					return err
+			for _, out := range []struct {
+				path  string
+				write func(io.Writer) error
+			}{{csvPath, c.WriteCSV}, {jsonPath, c.WriteJSON}} {
+				if out.path != "" {
+					if err := writeOutput(cmd, out.path, out.write); err != nil {
+						return err
+					}
 				}
 			}
 			if reportDir != "" {
@@ -58,11 +59,11 @@ Without --car it shows every car of the store, as one campaign.`,
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&storeTarget, "store", "", "the store: an SQLite file or a postgres:// URL")
-	f.StringVar(&car, "car", "", "only this car's runs (default: every car)")
-	f.StringVar(&csvPath, "csv", "", "write the table as CSV to this file")
-	f.StringVar(&jsonPath, "json", "", "write the table, the drift findings and the verdict as JSON to this file")
-	f.StringVar(&reportDir, "report", "", "write the trend report (index.html and figures) into this folder")
+	f.StringVar(&storeTarget, "store", "", "the store: an SQLite `FILE` or a postgres:// URL")
+	f.StringVar(&car, "car", "", "only the runs of this `CAR` (default: every car)")
+	f.StringVar(&csvPath, "csv", "", "write the table as CSV to this `FILE` (- for standard output)")
+	f.StringVar(&jsonPath, "json", "", "write the table, the drift findings and the verdict as JSON to this `FILE` (- for standard output)")
+	f.StringVar(&reportDir, "report", "", "write the trend report (index.html and figures) into this `DIR`")
 	cmd.MarkFlagRequired("store")
 	cmd.MarkFlagFilename("csv", "csv")
 	cmd.MarkFlagFilename("json", "json")

@@ -43,7 +43,7 @@ farther from the CG is labelled bounce, the other pitch.`,
 			if err != nil {
 				return fmt.Errorf("%s: %w", setupPath, err)
 			}
-			plots.WriteModel(cmd.OutOrStdout(), setup, modes, damped, guidance)
+			plots.WriteModel(infoOut(cmd, jsonPath), setup, modes, damped, guidance)
 			if jsonPath == "" {
 				return nil
 			}
@@ -57,18 +57,14 @@ farther from the CG is labelled bounce, the other pitch.`,
 			res := &compare.Result{
 				Tool:   compare.Tool{Name: "ridemodes", Version: version()},
 				Setup:  &compare.FileRef{Path: setupPath, SHA256: sum},
-				Model:  compare.ModelPart(v, modes),
+				Model:  compare.ModelPart(setup.Vehicle, modes),
 				Checks: guidance,
 			}
-			data, err := res.Marshal()
-			if err != nil {
-				return err
-			}
-			return ingest.WriteFileAtomic(jsonPath, data)
+			return writeResult(cmd, jsonPath, res)
 		},
 	}
-	cmd.Flags().StringVar(&setupPath, "setup", "", "setup file (TOML) describing the vehicle")
-	cmd.Flags().StringVar(&jsonPath, "json", "", "also write the result as JSON to this file")
+	cmd.Flags().StringVar(&setupPath, "setup", "", "setup `FILE` (TOML) describing the vehicle")
+	cmd.Flags().StringVar(&jsonPath, "json", "", "also write the result as JSON to this `FILE` (- for standard output)")
 	cmd.MarkFlagRequired("setup")
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.MarkFlagFilename("json", "json")

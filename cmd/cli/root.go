@@ -94,10 +94,11 @@ Start with "ridemodes demo" for the whole job on an invented example car, or
 		Example: `  ridemodes demo
   ridemodes model --setup car.toml
   ridemodes analyze rig.csv --setup car.toml --json result.json --report report/`,
-		Version:       version(),
-		SilenceUsage:  true,
-		SilenceErrors: true,
-		Args:          usageArgs(cobra.NoArgs),
+		Version:          version(),
+		SilenceUsage:     true,
+		SilenceErrors:    true,
+		Args:             usageArgs(cobra.NoArgs),
+		PersistentPreRun: noteDeprecated,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return cmd.Help()
 		},

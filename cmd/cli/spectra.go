@@ -9,7 +9,6 @@ import (
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/identify/spectral"
-	"github.com/ridemodes/ridemodes/ingest"
 )
 
 func newSpectraCmd() *cobra.Command {
@@ -22,7 +21,7 @@ func newSpectraCmd() *cobra.Command {
 		Short: "Write FRFs and coherence (or auto and cross spectra) of a log as a table",
 		Long: `spectra reads a log in constant memory, low-passes and decimates it when it is
 sampled far above the band, and estimates Welch-averaged spectra with the
-segment length chosen from the damping (or given with --segment).
+segment length chosen from the damping (or given with --segment-samples).
 
 With [[input]] channels in the setup (a rig test) it writes, per body sensor and
 pan, the FRF (two-input H1: front and rear pans together), magnitude, phase,
@@ -46,7 +45,7 @@ resolution bias) are printed.
 			if err != nil {
 				return libraryError(err)
 			}
-			if err := ingest.WriteAtomic(csvPath, func(w io.Writer) error {
+			if err := writeOutput(cmd, csvPath, func(w io.Writer) error {
 				if res.FRF != nil {
 					return spectral.WriteFRFTable(w, res.FRF)
 				}
@@ -54,7 +53,7 @@ resolution bias) are printed.
 			}); err != nil {
 				return err
 			}
-			out := cmd.OutOrStdout()
+			out := infoOut(cmd, csvPath)
 			fmt.Fprintf(out, "read %s: %d samples at %.6g Hz (%.1f s)\n", o.LogPath, sum.Samples, sum.SampleRateHz, sum.DurationS)
 			for _, w := range sum.Warnings {
 				fmt.Fprintf(out, "warning: %s\n", w)
@@ -69,13 +68,13 @@ resolution bias) are printed.
 			if res.FRF != nil {
 				what = "FRFs with coherence and error bands"
 			}
-			fmt.Fprintf(out, "wrote %s: %s, %d frequencies at %.4g Hz spacing\n", csvPath, what,
+			fmt.Fprintf(out, "wrote %s: %s, %d frequencies at %.4g Hz spacing\n", outName(csvPath), what,
 				len(res.Spectra.FreqsHz), res.Spectra.ResolutionHz())
 			return nil
 		},
 	}
 	registerLogFlags(cmd, &o)
-	cmd.Flags().StringVar(&csvPath, "csv", "", "table to write (CSV)")
+	cmd.Flags().StringVar(&csvPath, "csv", "", "table `FILE` to write (CSV; - for standard output)")
 	cmd.MarkFlagRequired("csv")
 	cmd.MarkFlagFilename("csv", "csv")
 	return cmd

@@ -12,7 +12,7 @@ import (
 	"slices"
 	"strings"
 
-	"github.com/ridemodes/ridemodes/compare/job"
+	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/identify"
 	"github.com/ridemodes/ridemodes/ingest"
 )
@@ -94,10 +94,10 @@ func Expand(inputs []string, setupPath, test string) (*Campaign, error) {
 }
 
 // checkTest refuses a test other than rig, drop or "" with a
-// *job.OptionError: the caller's mistake.
+// *compare.OptionError: the caller's mistake.
 func checkTest(test string) error {
 	if test != "" && test != identify.TestRig && test != identify.TestDrop {
-		return &job.OptionError{Err: fmt.Errorf("test %q: choose rig or drop (or leave it to the setup)", test)}
+		return &compare.OptionError{Err: fmt.Errorf("test %q: choose rig or drop (or leave it to the setup)", test)}
 	}
 	return nil
 }

@@ -8,8 +8,8 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/compare/batch"
-	"github.com/ridemodes/ridemodes/compare/job"
 )
 
 // TestManifestMistakes: every mistake is a *ManifestError at the line and
@@ -91,7 +91,7 @@ func TestManifestRows(t *testing.T) {
 	if c, err = batch.ReadManifest(path, "rig"); err != nil || c.Items[0].Test != "rig" || c.Items[1].Test != "drop" {
 		t.Errorf("with test rig: %v, items %+v", err, c)
 	}
-	var oe *job.OptionError
+	var oe *compare.OptionError
 	if _, err := batch.ReadManifest(path, "shaker"); !errors.As(err, &oe) {
 		t.Errorf("test shaker: %v, want an option error", err)
 	}

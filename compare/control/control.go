@@ -37,12 +37,12 @@ type Chart struct {
 // values, all finite.
 func Individuals(x []float64) (Chart, error) {
 	if len(x) < 2 {
-		return Chart{}, fmt.Errorf("control: an individuals chart needs at least 2 values, got %d", len(x))
+		return Chart{}, fmt.Errorf("an individuals chart needs at least 2 values, got %d", len(x))
 	}
 	var sum float64
 	for i, v := range x {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return Chart{}, fmt.Errorf("control: value %d is %g, not a finite number", i, v)
+			return Chart{}, fmt.Errorf("value %d is %g, not a finite number", i, v)
 		}
 		sum += v
 	}

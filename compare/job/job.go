@@ -27,9 +27,14 @@ type Options struct {
 	// [[input]] tables). With "drop" the setup's inputs are ignored.
 	Test string
 	// StartS and EndS bound the analysed window in s from the log's first
-	// sample (0: the whole log); Resample accepts jittery time steps.
+	// sample (0: the whole log; an EndS past the log's end is clamped with
+	// a warning); Resample accepts jittery time steps.
 	StartS, EndS float64
 	Resample     bool
+	// SampleRateHz is the sample rate of a log without a time column, in Hz
+	// (0: the setup's [analysis] sample_rate_hz); with a time column it is
+	// checked against the stamps.
+	SampleRateHz float64
 	// BandLowHz and BandHighHz are the analysis band in Hz.
 	BandLowHz, BandHighHz float64
 	// SegmentSamples is the rig route's Welch segment length after
@@ -48,17 +53,6 @@ type Options struct {
 	// size; it returns the reader's progress hook and a function called
 	// when reading ends. Drawing is the caller's business.
 	Progress func(path string, sizeBytes int64) (hook func(readBytes, totalBytes int64), done func())
-}
-
-// OptionError is a mistake in the options (a bad flag or an option that
-// does not fit the test): the caller's to fix, not the data's.
-type OptionError struct{ Err error }
-
-func (e *OptionError) Error() string { return e.Err.Error() }
-func (e *OptionError) Unwrap() error { return e.Err }
-
-func optionErrorf(format string, args ...any) error {
-	return &OptionError{fmt.Errorf(format, args...)}
 }
 
 // Outcome is everything one analysed log gives: the contract's result and
@@ -83,6 +77,10 @@ type plan struct {
 	loHz, hiHz     float64
 	window         spectral.Window
 	segment, order int
+	rateHz         float64
+	// notes say how an option was read (a window's other spelling); they
+	// join the result's warnings.
+	notes []string
 }
 
 // resolve loads the setup and checks the options against it and the test.
@@ -99,7 +97,7 @@ func (o *Options) resolve() (*plan, error) {
 	}
 	test, err := identify.TestOf(setup, o.Test)
 	if err != nil {
-		return nil, &OptionError{err}
+		return nil, &compare.OptionError{Err: err}
 	}
 	p := &plan{setup: setup, test: test, loHz: ingest.DefaultBandLowHz, hiHz: ingest.DefaultBandHighHz,
 		segment: setup.Analysis.SegmentSamples, order: setup.Analysis.MaxModelOrder}
@@ -114,38 +112,80 @@ func (o *Options) resolve() (*plan, error) {
 		}
 	}
 	if !(p.loHz > 0 && p.hiHz > p.loHz) || math.IsInf(p.hiHz, 0) {
-		return nil, optionErrorf("the analysis band %g-%g Hz needs 0 < low < high (--band-low, --band-high or [analysis])", p.loHz, p.hiHz)
+		return nil, compare.OptionErrorf("the analysis band %g-%g Hz needs 0 < low < high (--band-low, --band-high or [analysis])", p.loHz, p.hiHz)
+	}
+	if err := o.checkWindow(); err != nil {
+		return nil, err
 	}
 	if o.SegmentSamples != 0 {
+		if n := o.SegmentSamples; n < 16 || n&(n-1) != 0 {
+			return nil, compare.OptionErrorf("--segment-samples takes a power of two of at least 16 (got %d; e.g. %d), "+
+				"or leave it out to choose the length from the damping", n, nearestPowerOfTwo(n))
+		}
 		p.segment = o.SegmentSamples
 	}
 	if o.MaxModelOrder != 0 {
 		p.order = o.MaxModelOrder
 	}
 	if p.order != 0 && (p.order < 4 || p.order%2 == 1) {
-		return nil, optionErrorf("--max-order takes 0 (automatic) or an even number of at least 4 (two modes)")
+		return nil, compare.OptionErrorf("--max-model-order takes an even number of at least 4, room for two modes (got %d), "+
+			"or leave it out for the method's own", p.order)
+	}
+	p.rateHz = setup.Analysis.SampleRateHz
+	if o.SampleRateHz != 0 {
+		if !(o.SampleRateHz > 0) || math.IsInf(o.SampleRateHz, 0) {
+			return nil, compare.OptionErrorf("--rate takes the log's sample rate in Hz, a positive number (got %g)", o.SampleRateHz)
+		}
+		p.rateHz = o.SampleRateHz
 	}
 	if o.Event < 0 {
-		return nil, optionErrorf("--event counts releases from 0")
+		return nil, compare.OptionErrorf("--event counts releases from 0")
 	}
 	if o.Event != 0 && test == identify.TestRig {
-		return nil, optionErrorf("--event chooses a release in a drop test; this is a rig test (use --test drop for a drop log)")
+		return nil, compare.OptionErrorf("--event chooses a release in a drop test; this is a rig test (use --test drop for a drop log)")
 	}
 	name := setup.Analysis.Window
 	if o.Window != "" {
 		name = o.Window
 	}
-	if p.window, err = identify.WindowNamed(name); err != nil {
-		return nil, &OptionError{err}
+	var note string
+	if p.window, note, err = identify.WindowNamed(name); err != nil {
+		return nil, &compare.OptionError{Err: fmt.Errorf("--window: %w", err)}
+	}
+	if note != "" {
+		p.notes = append(p.notes, note)
 	}
 	return p, nil
+}
+
+// checkWindow refuses a --start/--end window that cannot hold a sample,
+// whatever the log.
+func (o *Options) checkWindow() error {
+	switch {
+	case math.IsNaN(o.StartS) || math.IsInf(o.StartS, 0) || o.StartS < 0:
+		return compare.OptionErrorf("--start takes a time in s from the log's first sample, zero or positive (got %g)", o.StartS)
+	case math.IsNaN(o.EndS) || math.IsInf(o.EndS, 0) || o.EndS < 0:
+		return compare.OptionErrorf("--end takes a time in s from the log's first sample, positive, or 0 for the end of the log (got %g)", o.EndS)
+	case o.EndS != 0 && o.EndS <= o.StartS:
+		return compare.OptionErrorf("--end %g s is not after --start %g s: the window to analyse runs from --start to --end", o.EndS, o.StartS)
+	}
+	return nil
+}
+
+// nearestPowerOfTwo returns the power of two nearest to n (at least 16).
+func nearestPowerOfTwo(n int) int {
+	p := 16
+	for p < n && p*2-n < n-p {
+		p *= 2
+	}
+	return p
 }
 
 // open opens a log for the plan's test, with the progress hook.
 func (o *Options) open(p *plan, path string) (r *ingest.Reader, done func(), err error) {
 	ro := ingest.Options{
 		Channels:     identify.Channels(p.setup, p.test),
-		SampleRateHz: p.setup.Analysis.SampleRateHz,
+		SampleRateHz: p.rateHz,
 		StartS:       o.StartS,
 		EndS:         o.EndS,
 		Resample:     o.Resample,
@@ -192,7 +232,7 @@ func (p *plan) identifyOptions(event int) identify.Options {
 // Analyze does the whole job on one log: read and check it, identify the
 // body modes by the test's route, set them beside the design model,
 // back-calculate the rates and judge the targets. Option mistakes are
-// *OptionError; a cancelled ctx returns ctx.Err(). Nothing is written: the
+// *compare.OptionError; a cancelled ctx returns ctx.Err(). Nothing is written: the
 // caller writes the outcome (JSON, report).
 func Analyze(ctx context.Context, o Options) (*Outcome, error) {
 	p, err := o.resolve()
@@ -254,7 +294,22 @@ func Spectra(ctx context.Context, o Options) (*identify.FRFResult, ingest.Summar
 		}
 		return nil, sum, withPath(o.LogPath, err)
 	}
+	var note string
+	if sum.Warnings, note = p.quality(sum.Warnings); note != "" {
+		res.Reasons = append(res.Reasons, note)
+	}
+	res.Warnings = append(slices.Clip(p.notes), res.Warnings...)
 	return res, sum, nil
+}
+
+// quality returns the reader's data-quality warnings as the test reads
+// them, and a note when some were dropped: analyze and spectra give the same
+// warnings on the same log.
+func (p *plan) quality(ws []ingest.Warning) ([]ingest.Warning, string) {
+	if p.test != identify.TestRig {
+		return ws, ""
+	}
+	return identify.RigLogWarnings(ws, p.setup.Inputs)
 }
 
 // result writes what the route identified in the contract's form.
@@ -276,15 +331,13 @@ func (o *Options) result(p *plan, path string, info ingest.Info, id *identify.Id
 		a.QuickEstimate = append(a.QuickEstimate, compare.QuickEstimate{Source: q.Source,
 			NaturalFrequencyHz: q.NaturalFrequencyHz, DampingRatio: compare.Finite(q.DampingRatio)})
 	}
-	quality := sum.Warnings
-	if id.Test == identify.TestRig {
-		var note string
-		if quality, note = identify.RigLogWarnings(quality, p.setup.Inputs); note != "" {
-			a.Choices = append(a.Choices, note)
-		}
+	quality, note := p.quality(sum.Warnings)
+	if note != "" {
+		a.Choices = append(a.Choices, note)
 	}
 	res.Log.Quality = quality
 	res.Analysis = a
+	res.Warnings = append(res.Warnings, p.notes...)
 	for _, w := range quality {
 		res.Warnings = append(res.Warnings, w.String())
 	}

@@ -59,7 +59,11 @@ func TestOptionMistakesAreOptionErrors(t *testing.T) {
 		o    job.Options
 		want string
 	}{
-		{"odd order", job.Options{MaxModelOrder: 5}, "--max-order"},
+		{"odd order", job.Options{MaxModelOrder: 5}, "--max-model-order"},
+		{"segment not a power of two", job.Options{SegmentSamples: 1000}, "--segment-samples takes a power of two of at least 16 (got 1000; e.g. 1024)"},
+		{"end before start", job.Options{StartS: 100, EndS: 10}, "--end 10 s is not after --start 100 s"},
+		{"negative start", job.Options{StartS: -1}, "--start"},
+		{"negative rate", job.Options{SampleRateHz: -200}, "--rate"},
 		{"negative event", job.Options{Test: "drop", Event: -1}, "--event"},
 		{"event on a rig test", job.Options{Event: 1}, "--test drop"},
 		{"unknown window", job.Options{Window: "triangle"}, "hann"},
@@ -68,7 +72,7 @@ func TestOptionMistakesAreOptionErrors(t *testing.T) {
 	} {
 		c.o.LogPath, c.o.SetupPath = rig, exampleSetup
 		_, err := job.Analyze(context.Background(), c.o)
-		var oe *job.OptionError
+		var oe *compare.OptionError
 		if !errors.As(err, &oe) || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%s: got %v, want an option error naming %s", c.name, err, c.want)
 		}
@@ -120,7 +124,7 @@ func TestOneSetupBothTests(t *testing.T) {
 	if err := os.WriteFile(noInputs, []byte(string(text)[:strings.Index(string(text), "[[input]]")]), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	var oe *job.OptionError
+	var oe *compare.OptionError
 	if _, err := job.Analyze(context.Background(), job.Options{LogPath: drop, SetupPath: noInputs, Test: "rig"}); !errors.As(err, &oe) {
 		t.Errorf("rig test without inputs: %v", err)
 	}

@@ -26,7 +26,7 @@ func AnalyzeRuns(ctx context.Context, o Options, logPaths []string) (*Outcome, e
 		return Analyze(ctx, o)
 	}
 	if len(logPaths) == 0 {
-		return nil, optionErrorf("no log to analyse")
+		return nil, compare.OptionErrorf("no log to analyse")
 	}
 	p, err := o.resolve()
 	if err != nil {

@@ -22,8 +22,13 @@
 // Every random number comes from one PCG stream seeded by Options.Seed, so a
 // log is reproducible byte for byte.
 //
+// Run is the command's entry: it refuses what cannot be a car (no damping:
+// the response would have no bound) and options out of range (as
+// *compare.OptionError naming the flag). What analyze needs of a log is
+// package compare/job's (ShortLogWarning).
+//
 // Place in the flow ingest -> identify -> compare -> plots -> cmd: the
 // compare layer, beside the model it simulates. It may import ingest (the
-// setup's sensors and inputs, the log writer) and compare, never plots or
-// cmd.
+// setup's sensors and inputs, the log writer) and compare, never identify
+// (whose tests simulate their truth with it), plots or cmd.
 package simulate

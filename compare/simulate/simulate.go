@@ -33,8 +33,11 @@ const (
 	UnitsMixed = "mixed" // channels alternate g and m/s^2, starting with g
 )
 
-// Options are the test conditions. Zero values take the defaults of Defaults.
+// Options are the test conditions; Defaults gives them for each test.
+// The rig fields (Drive to RoadSpeedMPerS) are ignored by a drop and the
+// drop fields by a rig test, so one Options can hold both.
 type Options struct {
+	// DurationS is the log's length in s; Run takes 0 as the test's default.
 	DurationS     float64
 	RateHz        float64
 	Seed          uint64
@@ -77,49 +80,102 @@ type Log struct {
 	Columns []ingest.LogColumn
 }
 
+// ErrUndamped is matched (errors.Is) by the refusal to simulate a car
+// without damping.
+var ErrUndamped = errors.New("a car needs damping at both axles to be simulated")
+
+// checkCar refuses a car that cannot be simulated as a car: without damping
+// at both axles the response to a rig drive at a body mode has no bound and
+// a drop never decays, so no log of it can be analysed.
+func checkCar(v compare.Vehicle) error {
+	if err := v.Validate(); err != nil {
+		return err
+	}
+	if !(v.FrontDampingNsPerM > 0 && v.RearDampingNsPerM > 0) {
+		return fmt.Errorf("%w: without it the body's response "+
+			"to a rig drive has no bound and a drop never decays, so analyze could not use the log; give "+
+			"front_damping_ns_per_m and rear_damping_ns_per_m in [vehicle] (N s/m, both wheels of the axle)", ErrUndamped)
+	}
+	return nil
+}
+
+// check refuses options outside what the flags allow, with an
+// *compare.OptionError that names the flag.
 func (o *Options) check(rig bool) error {
+	bad := compare.OptionErrorf
 	switch {
 	case !(o.RateHz > 0) || math.IsInf(o.RateHz, 0):
-		return fmt.Errorf("simulate: the sample rate must be positive (got %g Hz)", o.RateHz)
+		return bad("--rate takes the sample rate in Hz, a positive number (got %g)", o.RateHz)
 	case !(o.DurationS > 0) || math.IsInf(o.DurationS, 0):
-		return fmt.Errorf("simulate: the duration must be positive (got %g s)", o.DurationS)
+		return bad("--duration takes the log's length in s, a positive number (got %g)", o.DurationS)
 	case o.DurationS*o.RateHz < 16:
-		return fmt.Errorf("simulate: %g s at %g Hz gives fewer than 16 samples", o.DurationS, o.RateHz)
+		return bad("--duration %g s at --rate %g Hz gives fewer than 16 samples; log longer or faster", o.DurationS, o.RateHz)
 	case o.DurationS*o.RateHz > 1e9:
-		return fmt.Errorf("simulate: %g s at %g Hz is over 1e9 samples", o.DurationS, o.RateHz)
-	case !(o.NoiseFraction >= 0) || o.NoiseFraction > 10:
-		return fmt.Errorf("simulate: the noise fraction must lie in [0, 10] (got %g)", o.NoiseFraction)
+		return bad("--duration %g s at --rate %g Hz is over 1e9 samples; log shorter or slower", o.DurationS, o.RateHz)
+	case !(o.NoiseFraction >= 0) || o.NoiseFraction > 1:
+		return bad("--noise is a fraction from 0 to 1 of each channel's RMS (rig) or peak (drop), e.g. 0.05 for 5 %% (got %g)", o.NoiseFraction)
 	case math.IsNaN(o.OffsetMPerS2) || math.IsInf(o.OffsetMPerS2, 0):
-		return errors.New("simulate: the offset must be finite")
+		return bad("--offset takes a finite number in m/s^2")
 	case o.Units != UnitsSI && o.Units != UnitsG && o.Units != UnitsMixed:
-		return fmt.Errorf("simulate: units must be %q, %q or %q (got %q)", UnitsSI, UnitsG, UnitsMixed, o.Units)
+		return bad("--units takes %q, %q or %q (got %q; units are case-sensitive: g is the standard acceleration of gravity)",
+			UnitsSI, UnitsG, UnitsMixed, o.Units)
 	}
 	if !rig {
 		if !(o.DropHeightM > 0) || o.DropHeightM > 0.5 {
-			return fmt.Errorf("simulate: the drop height must lie in (0, 0.5] m (got %g m)", o.DropHeightM)
+			return bad("--drop-height takes the blocks' height in m, above 0 and at most 0.5 (got %g)", o.DropHeightM)
 		}
 		if !(o.PreTriggerS >= 0) || o.PreTriggerS >= o.DurationS {
-			return fmt.Errorf("simulate: the pre-trigger time must lie in [0, duration) (got %g s)", o.PreTriggerS)
+			return bad("--pre-trigger takes the rest before the release in s, from 0 to less than --duration %g s (got %g)", o.DurationS, o.PreTriggerS)
 		}
 		if !(o.RearDelayS >= 0) || math.IsInf(o.RearDelayS, 0) {
-			return fmt.Errorf("simulate: the rear axle's delay must be zero or positive and finite (got %g s)", o.RearDelayS)
+			return bad("--rear-delay takes a time in s, zero or positive (got %g)", o.RearDelayS)
 		}
 		return nil
 	}
 	nyq := o.RateHz / 2
 	switch {
 	case o.Drive != DriveRandom && o.Drive != DriveSweep && o.Drive != DriveRoad:
-		return fmt.Errorf("simulate: drive must be %q, %q or %q (got %q)", DriveRandom, DriveSweep, DriveRoad, o.Drive)
+		return bad("--drive takes %q, %q or %q (got %q)", DriveRandom, DriveSweep, DriveRoad, o.Drive)
 	case !(o.BandLowHz > 0) || !(o.BandHighHz > o.BandLowHz):
-		return fmt.Errorf("simulate: the drive band needs 0 < low < high (got %g to %g Hz)", o.BandLowHz, o.BandHighHz)
+		return bad("the drive band needs 0 < --drive-band-low < --drive-band-high (got %g to %g Hz)", o.BandLowHz, o.BandHighHz)
 	case o.BandHighHz >= nyq:
-		return fmt.Errorf("simulate: the drive band's upper edge %g Hz must lie below the Nyquist frequency %g Hz", o.BandHighHz, nyq)
+		return bad("--drive-band-high %g Hz must lie below the Nyquist frequency %g Hz of --rate %g Hz", o.BandHighHz, nyq, o.RateHz)
 	case !(o.DriveRMSMPerS2 > 0) || math.IsInf(o.DriveRMSMPerS2, 0):
-		return fmt.Errorf("simulate: the drive RMS must be positive (got %g m/s^2)", o.DriveRMSMPerS2)
+		return bad("--drive-rms takes the pans' RMS acceleration in m/s^2, a positive number (got %g)", o.DriveRMSMPerS2)
 	case o.Drive == DriveRoad && !(o.RoadSpeedMPerS > 0):
-		return fmt.Errorf("simulate: a road drive needs a positive speed (got %g m/s)", o.RoadSpeedMPerS)
+		return bad("--road-speed takes the speed of a road drive in m/s, a positive number (got %g)", o.RoadSpeedMPerS)
 	}
 	return nil
+}
+
+// Run simulates test ("rig" or "drop") of the car that setup describes,
+// with its sensors (and, for a rig test, its inputs): Rig or Drop after the
+// checks. A DurationS of 0 takes the test's default. Mistakes in test or o
+// are *compare.OptionError; a setup that cannot give a log (no sensors, no
+// damping) is an error that names the file.
+func Run(setup *ingest.Setup, test string, o Options) (*Log, error) {
+	if test != "rig" && test != "drop" {
+		return nil, compare.OptionErrorf(`--test takes "rig" or "drop" (got %q)`, test)
+	}
+	if err := setup.CheckForLog(); err != nil {
+		return nil, err
+	}
+	if o.DurationS == 0 {
+		o.DurationS = Defaults(test).DurationS
+	}
+	v := compare.DesignOf(setup.Vehicle)
+	var log *Log
+	var err error
+	if test == "rig" {
+		log, err = Rig(v, setup.Sensors, setup.Inputs, o)
+	} else {
+		log, err = Drop(v, setup.Sensors, o)
+	}
+	var oe *compare.OptionError
+	if err != nil && !errors.As(err, &oe) {
+		return nil, fmt.Errorf("%s: %w", setup.Path, err)
+	}
+	return log, err
 }
 
 // smoothLength returns the least n' >= n whose prime factors are 2, 3 and 5,
@@ -153,14 +209,14 @@ func unitFor(units string, i int) string {
 // Rig simulates a rig test: each [[input]] channel logs its axle's pan
 // acceleration, each [[sensor]] the body's vertical acceleration at its x_m.
 func Rig(v compare.Vehicle, sensors []ingest.Sensor, inputs []ingest.Input, o Options) (*Log, error) {
-	if err := v.Validate(); err != nil {
+	if err := checkCar(v); err != nil {
 		return nil, err
 	}
 	if err := o.check(true); err != nil {
 		return nil, err
 	}
 	if len(inputs) == 0 {
-		return nil, errors.New("simulate: a rig test needs [[input]] channels in the setup")
+		return nil, errors.New("a rig test needs the pans' channels as [[input]] tables in the setup (channel, axle); for a drop, give --test drop")
 	}
 	n := int(math.Round(o.DurationS * o.RateHz))
 	nfft := smoothLength(n)
@@ -314,7 +370,7 @@ func finish(log *Log, o Options, rng *rand.Rand, level func([]float64) float64) 
 // after it, as the release sample does. The acceleration logged is that of
 // the state matrix, A x, the pans being at rest between steps.
 func Drop(v compare.Vehicle, sensors []ingest.Sensor, o Options) (*Log, error) {
-	if err := v.Validate(); err != nil {
+	if err := checkCar(v); err != nil {
 		return nil, err
 	}
 	if err := o.check(false); err != nil {
@@ -335,8 +391,8 @@ func Drop(v compare.Vehicle, sensors []ingest.Sensor, o Options) (*Log, error) {
 		x = v.StepState(-h, 0)
 		at := float64(i0) + o.RearDelayS*o.RateHz
 		if at > float64(n-1) {
-			return nil, fmt.Errorf("simulate: the rear axle drops at %.6g s, after the log's last sample at %.6g s; "+
-				"lengthen the log or shorten the rear delay", at*dt, float64(n-1)*dt)
+			return nil, compare.OptionErrorf("the rear axle drops at %.6g s, after the log's last sample at %.6g s; "+
+				"lengthen --duration or shorten --rear-delay", at*dt, float64(n-1)*dt)
 		}
 		whole := math.Floor(at)
 		rear, frac = int(whole), at-whole

@@ -2,6 +2,7 @@ package simulate
 
 import (
 	"bytes"
+	"errors"
 	"math"
 	"math/cmplx"
 	"strconv"
@@ -389,5 +390,26 @@ func TestRollOffOptionErrors(t *testing.T) {
 		if _, err := Drop(testCar, testSensors, o); err == nil {
 			t.Errorf("rear delay %g s: no error", delay)
 		}
+	}
+}
+
+// TestRefusals: a car without damping at both axles is refused (its
+// response has no bound), and options out of range, a noise fraction
+// above 1 among them, are *compare.OptionError (the command's usage errors).
+func TestRefusals(t *testing.T) {
+	for _, v := range []compare.Vehicle{testCar.WithRates(compare.Rates{FrontRateNPerM: testCar.FrontRateNPerM,
+		RearRateNPerM: testCar.RearRateNPerM}), func() compare.Vehicle { v := testCar; v.RearDampingNsPerM = 0; return v }()} {
+		if _, err := Rig(v, testSensors, testInputs, Defaults("rig")); !errors.Is(err, ErrUndamped) {
+			t.Errorf("rig of %+v: %v", v, err)
+		}
+		if _, err := Drop(v, testSensors, Defaults("drop")); !errors.Is(err, ErrUndamped) {
+			t.Errorf("drop of %+v: %v", v, err)
+		}
+	}
+	o := Defaults("rig")
+	o.NoiseFraction = 5
+	var oe *compare.OptionError
+	if _, err := Rig(testCar, testSensors, testInputs, o); !errors.As(err, &oe) {
+		t.Errorf("noise 5: %v", err)
 	}
 }

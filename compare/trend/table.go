@@ -263,7 +263,7 @@ func writeMember(b *bytes.Buffer, comma bool, key string, v any) error {
 	kb, _ := json.Marshal(key)
 	vb, err := json.Marshal(v)
 	if err != nil {
-		return fmt.Errorf("trend: %s: %w", key, err)
+		return fmt.Errorf("%s: %w", key, err)
 	}
 	b.Write(kb)
 	b.WriteByte(':')

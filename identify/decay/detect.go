@@ -105,7 +105,7 @@ type Event struct {
 func (e Event) LastStepIndex() int { return e.Steps[len(e.Steps)-1] }
 
 // ErrNoEvent is matched (errors.Is) by a *NoEventError.
-var ErrNoEvent = errors.New("decay: no release in the log")
+var ErrNoEvent = errors.New("no release in the log")
 
 // NoEventError reports a log in which no release was found.
 type NoEventError struct {
@@ -122,11 +122,11 @@ type NoEventError struct {
 
 func (e *NoEventError) Error() string {
 	if e.NeverAtRest {
-		return fmt.Sprintf("decay: the %.3g s log is never at rest for %.3g s, so no release can be found; "+
+		return fmt.Sprintf("the %.3g s log is never at rest for %.3g s, so no release can be found; "+
 			"record a pre-trigger of at least %.3g s with the car still, check that the channels are body "+
 			"accelerometers, or shorten the rest length", e.DurationS, e.RestS, e.RestS)
 	}
-	return fmt.Sprintf("decay: no release in the %.3g s log: the body channels never depart from rest by more "+
+	return fmt.Sprintf("no release in the %.3g s log: the body channels never depart from rest by more "+
 		"than %g times their noise (largest departure %.3g times); check that the log covers the drop, that the "+
 		"channels are the body accelerometers and their scaling, or lower the threshold",
 		e.DurationS, e.ThresholdK, e.LargestDeparture)
@@ -140,7 +140,7 @@ func (e *NoEventError) Is(target error) bool { return target == ErrNoEvent }
 type ConstantChannelError struct{ Channel int }
 
 func (e *ConstantChannelError) Error() string {
-	return fmt.Sprintf("decay: channel %d is constant (no noise, no signal); check the sensor, its cable and "+
+	return fmt.Sprintf("channel %d is constant (no noise, no signal); check the sensor, its cable and "+
 		"the channel mapping", e.Channel)
 }
 
@@ -171,7 +171,7 @@ func Detect(rateHz float64, channels [][]float64, opt DetectOptions) ([]Event, e
 	n := len(channels[0])
 	w := max(int(math.Round(opt.RestS*rateHz)), 8)
 	if n < 2*w+1 {
-		return nil, fmt.Errorf("decay: the log has %d samples (%.3g s); it needs at least %d (twice the rest "+
+		return nil, fmt.Errorf("the log has %d samples (%.3g s); it needs at least %d (twice the rest "+
 			"length %.3g s) to show rest and a release", n, float64(n)/rateHz, 2*w+1, opt.RestS)
 	}
 	sd := make([]float64, len(channels))

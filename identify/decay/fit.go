@@ -213,7 +213,7 @@ func Fit(rateHz float64, channels [][]float64, posM []float64, opt Options) (*Re
 			"(peak departure %.0f sd)", opt.Event, len(events), ev.ReleaseS, opt.Detect.ThresholdK, ev.PeakDeparture))
 	if len(events) > 1 {
 		res.Warnings = append(res.Warnings, Warning{WarnSeveralEvents, fmt.Sprintf(
-			"the log holds %d releases; event %d was analysed (Options.Event chooses another)", len(events), opt.Event)})
+			"the log holds %d releases; release %d (counted from 0) was analysed; --event chooses another", len(events), opt.Event)})
 	}
 	if !ev.Settled {
 		res.Warnings = append(res.Warnings, Warning{WarnUnsettled, fmt.Sprintf(
@@ -248,7 +248,7 @@ func Fit(rateHz float64, channels [][]float64, posM []float64, opt Options) (*Re
 		after, after, opt.Detect.RestS, quietFactor))
 	if dec.factor > 1 {
 		res.Reasons = append(res.Reasons, fmt.Sprintf(
-			"decimated by %d to %.4g Hz (Kaiser FIR of package spectral); residual variance scaled by %.4f for the "+
+			"decimated by %d to %.4g Hz (low-pass anti-alias filter, Kaiser-window FIR); residual variance scaled by %.4f for the "+
 				"filtered noise", dec.factor, res.FitRateHz, dec.kappa))
 	}
 

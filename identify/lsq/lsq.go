@@ -74,7 +74,7 @@ type Result struct {
 // ErrMaxIterations is returned by Minimize, with the last iterate and its
 // Result, when Settings.MaxIterations steps all lowered the cost by more than
 // the relative tolerance.
-var ErrMaxIterations = errors.New("lsq: the cost was still falling after the most iterations allowed")
+var ErrMaxIterations = errors.New("the cost was still falling after the most iterations allowed")
 
 // Minimize lowers sum e_i^2 of the rows residuals of f over x, in place from
 // the start x, as the package documentation describes. It returns the cost,

@@ -243,7 +243,7 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	res.UpperResidual, res.LowerResidual = pr.residualTerms(theta)
 	res.NormalisedResidual = pr.normalisedResidual(theta)
 	res.CoherenceInBand = coherenceInBand(set, b.bins)
-	res.Warnings = append(res.Warnings, qualityWarnings(res)...)
+	res.Warnings = append(res.Warnings, qualityWarnings(res, set.OutputNames)...)
 	flagModes(res, set.OutputPosM)
 	return res, nil
 }
@@ -272,7 +272,7 @@ func defaultBand(set *FRFSet) (lo, hi float64, err error) {
 	}
 	qm, _ := QuickEstimate(set, first, f[len(f)-1])
 	if len(qm) == 0 {
-		return 0, 0, fmt.Errorf("modal: no CMIF peak in %.3g-%.3g Hz to centre a default band on; "+
+		return 0, 0, fmt.Errorf("no CMIF peak in %.3g-%.3g Hz to centre a default band on; "+
 			"give the band (BandLowHz, BandHighHz) and check the coherence of the FRFs", first, f[len(f)-1])
 	}
 	lo = math.Max(first, quickBandFactorLow*qm[0].PeakHz)
@@ -503,7 +503,9 @@ func coherenceInBand(set *FRFSet, bins []int) []float64 {
 	return out
 }
 
-func qualityWarnings(res *Result) []Warning {
+// qualityWarnings names each sensor by its channel in names (set order),
+// or by its number when the set has no names.
+func qualityWarnings(res *Result, names []string) []Warning {
 	var w []Warning
 	if (res.NormalisedResidual > poorResidual || res.ChiSquarePerDOF > poorChiSquare) && res.ChiSquarePerDOF <= maxChiSquare {
 		w = append(w, Warning{WarnPoorFit, fmt.Sprintf(
@@ -513,7 +515,7 @@ func qualityWarnings(res *Result) []Warning {
 	for o, c := range res.CoherenceInBand {
 		if c < lowCoherence {
 			w = append(w, Warning{WarnLowCoherence, fmt.Sprintf(
-				"output %d: mean multiple coherence %.2f in the band; check the sensor, its mounting and the drive level", o+1, c)})
+				"%s: mean multiple coherence %.2f in the band; check the sensor, its mounting and the drive level", sensorName(names, o), c)})
 		}
 	}
 	for _, m := range res.Modes {
@@ -535,4 +537,12 @@ func stableClusters(pts []StabilisationPoint, least PoleStatus) []poleCluster {
 		}
 	}
 	return out
+}
+
+// sensorName returns the channel of sensor o, or "sensor o+1" without names.
+func sensorName(names []string, o int) string {
+	if o < len(names) && names[o] != "" {
+		return names[o]
+	}
+	return fmt.Sprintf("sensor %d", o+1)
 }

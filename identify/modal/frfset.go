@@ -195,7 +195,7 @@ func FromSpectral(fs *spectral.FRFSet, sp *spectral.Spectra, outputPosM []float6
 	}
 	w, err := sp.Window.Values(sp.SegmentLen)
 	if err != nil {
-		return nil, fmt.Errorf("modal: window of the spectra: %w", err)
+		return nil, fmt.Errorf("window of the spectra: %w", err)
 	}
 	const maxLagBins = 8 // the Hann kernel's correlation ends at lag 2; others decay fast
 	set := &FRFSet{

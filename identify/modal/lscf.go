@@ -199,11 +199,11 @@ func denominator(b *band, order int, extra []float64) (*mat.VecDense, []*mat.Den
 			}
 		}
 		if !chol.Factorize(R) {
-			return nil, nil, fmt.Errorf("modal: fraction polynomial order %d: the numerator normal equations are singular (too few bins or too high an order)", order)
+			return nil, nil, fmt.Errorf("fraction polynomial order %d: the numerator normal equations are singular (too few bins or too high an order)", order)
 		}
 		tmp := mat.NewDense(n1, n1, nil)
 		if err := chol.SolveTo(tmp, S); err != nil {
-			return nil, nil, fmt.Errorf("modal: fraction polynomial order %d: %w", order, err)
+			return nil, nil, fmt.Errorf("fraction polynomial order %d: %w", order, err)
 		}
 		rs[p] = tmp
 		prod.Mul(S.T(), tmp)
@@ -224,7 +224,7 @@ func denominator(b *band, order int, extra []float64) (*mat.VecDense, []*mat.Den
 	}
 	var a mat.VecDense
 	if err := a.SolveVec(A, rhs); err != nil {
-		return nil, nil, fmt.Errorf("modal: fraction polynomial order %d: the denominator equations are singular: %w", order, err)
+		return nil, nil, fmt.Errorf("fraction polynomial order %d: the denominator equations are singular: %w", order, err)
 	}
 	return &a, rs, nil
 }
@@ -242,7 +242,7 @@ func roots(a *mat.VecDense, order int, ws float64) ([]complex128, error) {
 	}
 	var eig mat.Eigen
 	if !eig.Factorize(C, mat.EigenNone) {
-		return nil, fmt.Errorf("modal: fraction polynomial order %d: the root finder did not converge", order)
+		return nil, fmt.Errorf("fraction polynomial order %d: the root finder did not converge", order)
 	}
 	var poles []complex128
 	for _, x := range eig.Values(nil) {

@@ -140,7 +140,7 @@ func (pr poleResidue) linearResidues(theta []float64) error {
 			y.SetVec(2*n+1, imag(h)/sd)
 		}
 		if err := x.SolveVec(A, y); err != nil {
-			return fmt.Errorf("modal: residues of FRF %d: %w", p, err)
+			return fmt.Errorf("residues of FRF %d: %w", p, err)
 		}
 		copy(pr.pairParams(theta, p), x.RawVector().Data)
 	}
@@ -196,12 +196,12 @@ func (pr poleResidue) covariance(J *mat.Dense, cost float64) (*mat.SymDense, flo
 	}
 	var chol mat.Cholesky
 	if !chol.Factorize(&B) {
-		return nil, 0, fmt.Errorf("modal: the fit's normal matrix is singular: the data do not determine every parameter; " +
+		return nil, 0, fmt.Errorf("the fit's normal matrix is singular: the data do not determine every parameter; " +
 			"widen the band or drop residual terms")
 	}
 	var binv mat.SymDense
 	if err := chol.InverseTo(&binv); err != nil {
-		return nil, 0, fmt.Errorf("modal: inverting the fit's normal matrix: %w", err)
+		return nil, 0, fmt.Errorf("inverting the fit's normal matrix: %w", err)
 	}
 	var t, cov mat.Dense
 	t.Mul(&binv, meat)

@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+
+	"github.com/ridemodes/ridemodes/identify/body"
 )
 
 // WarningCode classifies a Warning.
@@ -52,7 +54,7 @@ type Warning struct {
 }
 
 // ErrTooFewModes is matched (errors.Is) by a *ModeCountError.
-var ErrTooFewModes = errors.New("modal: fewer than two stable modes in the band")
+var ErrTooFewModes = errors.New("fewer than two stable modes in the band")
 
 // ModeCountError reports that the fit found fewer than the two body modes.
 type ModeCountError struct {
@@ -62,16 +64,16 @@ type ModeCountError struct {
 }
 
 func (e *ModeCountError) Error() string {
-	return fmt.Sprintf("modal: %s found %d stable physical mode(s) in %.3g-%.3g Hz, need the two body modes; "+
-		"try a longer log (more averages), a wider band, a higher maximum model order, "+
-		"and check the coherence of the FRFs in the band", e.Stage, e.Found, e.BandLowHz, e.BandHighHz)
+	return fmt.Sprintf("%s found %d stable physical mode(s) in %.3g-%.3g Hz, need the two body modes; "+
+		"try a longer log (more averages), %s, a higher --max-model-order, "+
+		"and check the coherence of the FRFs in the band", e.Stage, e.Found, e.BandLowHz, e.BandHighHz, body.BandAdvice(e.BandLowHz, e.BandHighHz))
 }
 
 // Is reports whether target is ErrTooFewModes.
 func (e *ModeCountError) Is(target error) bool { return target == ErrTooFewModes }
 
 // ErrTooFewBins is matched (errors.Is) by a *BinCountError.
-var ErrTooFewBins = errors.New("modal: too few usable frequency bins in the band")
+var ErrTooFewBins = errors.New("too few usable frequency bins in the band")
 
 // BinCountError reports a band with too few usable bins for the fit.
 type BinCountError struct {
@@ -80,8 +82,8 @@ type BinCountError struct {
 }
 
 func (e *BinCountError) Error() string {
-	return fmt.Sprintf("modal: %d usable bins in %.3g-%.3g Hz, need at least %d; "+
-		"widen the band, use a finer resolution (longer segments), or check for NaN FRFs (inseparable inputs)",
+	return fmt.Sprintf("%d usable bins in %.3g-%.3g Hz, need at least %d; "+
+		"widen the band (--band-low, --band-high), use a finer resolution (a longer --segment-samples), or check that the front and rear drives differ (identical drives cannot be separated)",
 		e.Usable, e.BandLowHz, e.BandHighHz, e.Need)
 }
 

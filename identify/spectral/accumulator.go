@@ -43,13 +43,13 @@ type Config struct {
 func (c Config) validate() error {
 	switch {
 	case !(c.FsHz > 0) || math.IsInf(c.FsHz, 0):
-		return fmt.Errorf("spectral: sample rate %g Hz, need a positive finite rate", c.FsHz)
+		return fmt.Errorf("sample rate %g Hz, need a positive finite rate", c.FsHz)
 	case c.SegmentLen < 2:
-		return fmt.Errorf("spectral: segment length %d, need at least 2 samples", c.SegmentLen)
+		return fmt.Errorf("segment length %d, need at least 2 samples", c.SegmentLen)
 	case c.Overlap < 0 || c.Overlap >= c.SegmentLen:
-		return fmt.Errorf("spectral: overlap %d samples, need 0 <= overlap < segment length %d", c.Overlap, c.SegmentLen)
+		return fmt.Errorf("overlap %d samples, need 0 <= overlap < segment length %d", c.Overlap, c.SegmentLen)
 	case c.Workers < 0:
-		return fmt.Errorf("spectral: %d workers, need zero (default) or more", c.Workers)
+		return fmt.Errorf("%d workers, need zero (default) or more", c.Workers)
 	}
 	return nil
 }
@@ -102,7 +102,7 @@ func NewAccumulator(cfg Config, channels []string) (*Accumulator, error) {
 		return nil, err
 	}
 	if len(channels) == 0 {
-		return nil, fmt.Errorf("spectral: no channels")
+		return nil, fmt.Errorf("no channels")
 	}
 	if cfg.Workers == 0 {
 		cfg.Workers = defaultWorkers(cfg.SegmentLen)
@@ -112,7 +112,7 @@ func NewAccumulator(cfg Config, channels []string) (*Accumulator, error) {
 		return nil, err
 	}
 	if floats.Dot(win, win) == 0 {
-		return nil, fmt.Errorf("spectral: window %v is zero over the %d-sample segment", cfg.Window, cfg.SegmentLen)
+		return nil, fmt.Errorf("window %v is zero over the %d-sample segment", cfg.Window, cfg.SegmentLen)
 	}
 	n, nch := cfg.SegmentLen, len(channels)
 	a := &Accumulator{
@@ -243,7 +243,7 @@ func (l *lane) process(a *Accumulator) {
 // frequencies k fs/N, the density scale 1/fs and the noise bandwidth.
 func (a *Accumulator) SetRate(fsHz float64) error {
 	if !(fsHz > 0) || math.IsInf(fsHz, 0) {
-		return fmt.Errorf("spectral: sample rate %g Hz, need a positive finite rate", fsHz)
+		return fmt.Errorf("sample rate %g Hz, need a positive finite rate", fsHz)
 	}
 	a.cfg.FsHz = fsHz
 	return nil

@@ -62,13 +62,13 @@ type Decimator struct {
 // fsHz, feeding next.
 func NewDecimator(factor, nch int, fsHz float64, next BlockWriter) (*Decimator, error) {
 	if factor < 1 {
-		return nil, fmt.Errorf("spectral: decimation factor %d, need at least 1", factor)
+		return nil, fmt.Errorf("decimation factor %d, need at least 1", factor)
 	}
 	if !(fsHz > 0) || math.IsInf(fsHz, 0) {
-		return nil, fmt.Errorf("spectral: sample rate %g Hz, need a positive finite rate", fsHz)
+		return nil, fmt.Errorf("sample rate %g Hz, need a positive finite rate", fsHz)
 	}
 	if nch < 1 {
-		return nil, fmt.Errorf("spectral: no channels")
+		return nil, fmt.Errorf("no channels")
 	}
 	taps := antiAliasTaps(factor)
 	d := &Decimator{factor: factor, taps: taps, next: next, tNext: len(taps) - 1,

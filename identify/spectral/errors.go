@@ -6,10 +6,10 @@ import (
 )
 
 // ErrTooShort is matched (errors.Is) by a ShortRecordError.
-var ErrTooShort = errors.New("spectral: record too short")
+var ErrTooShort = errors.New("record too short")
 
 // ErrNonFinite is matched (errors.Is) by a NonFiniteError.
-var ErrNonFinite = errors.New("spectral: non-finite sample")
+var ErrNonFinite = errors.New("non-finite sample")
 
 // ShortRecordError reports a record that holds fewer whole segments than an
 // estimate needs.
@@ -21,7 +21,7 @@ type ShortRecordError struct {
 }
 
 func (e *ShortRecordError) Error() string {
-	return fmt.Sprintf("spectral: record too short: %d samples give %d whole segments of %d, need %d; record longer or use shorter segments",
+	return fmt.Sprintf("record too short: %d samples give %d whole segments of %d, need %d; record longer or use shorter segments",
 		e.Samples, e.Segments, e.SegmentLen, e.Need)
 }
 
@@ -36,7 +36,7 @@ type NonFiniteError struct {
 }
 
 func (e *NonFiniteError) Error() string {
-	return fmt.Sprintf("spectral: channel %d, sample %d is %g: remove or repair the bad samples before estimating spectra",
+	return fmt.Sprintf("channel %d, sample %d is %g: remove or repair the bad samples before estimating spectra",
 		e.Channel, e.Sample, e.Value)
 }
 

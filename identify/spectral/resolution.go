@@ -79,11 +79,11 @@ func NewBank(cfg BankConfig, channels []string) (*Bank, error) {
 	}
 	for _, n := range []int{cfg.MinSegmentLen, cfg.MaxSegmentLen} {
 		if n < 2 || bits.OnesCount(uint(n)) != 1 {
-			return nil, fmt.Errorf("spectral: candidate segment length %d is not a power of two >= 2", n)
+			return nil, fmt.Errorf("candidate segment length %d is not a power of two >= 2", n)
 		}
 	}
 	if cfg.MinSegmentLen > cfg.MaxSegmentLen {
-		return nil, fmt.Errorf("spectral: shortest candidate segment %d exceeds the longest %d", cfg.MinSegmentLen, cfg.MaxSegmentLen)
+		return nil, fmt.Errorf("shortest candidate segment %d exceeds the longest %d", cfg.MinSegmentLen, cfg.MaxSegmentLen)
 	}
 	b := &Bank{}
 	for n := cfg.MinSegmentLen; n <= cfg.MaxSegmentLen; n *= 2 {

@@ -52,7 +52,7 @@ func (w Window) String() string {
 // Values returns the n window weights.
 func (w Window) Values(n int) ([]float64, error) {
 	if n < 1 {
-		return nil, fmt.Errorf("spectral: window length %d, need at least 1", n)
+		return nil, fmt.Errorf("window length %d, need at least 1", n)
 	}
 	switch w {
 	case Hann:
@@ -64,7 +64,7 @@ func (w Window) Values(n int) ([]float64, error) {
 	case Rectangular:
 		return periodic(window.Rectangular, n), nil
 	}
-	return nil, fmt.Errorf("spectral: unknown window %d", int(w))
+	return nil, fmt.Errorf("unknown window %d", int(w))
 }
 
 // periodic returns the DFT-even form of one of gonum's symmetric windows:

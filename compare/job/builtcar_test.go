@@ -2,7 +2,6 @@ package job_test
 
 import (
 	"context"
-	"io"
 	"math"
 	"path/filepath"
 	"strings"
@@ -32,23 +31,9 @@ const (
 // and mixed units, read with the example (design) setup's sensors and pans.
 func builtCarLog(t *testing.T, dir string) string {
 	t.Helper()
-	setup, err := ingest.LoadSetup(exampleSetup)
-	if err != nil {
-		t.Fatal(err)
-	}
 	o := simulate.Defaults("rig")
 	o.DurationS, o.NoiseFraction, o.Units, o.Seed = 600, 0.05, simulate.UnitsMixed, 11
-	log, err := simulate.Rig(builtCar, setup.Sensors, setup.Inputs, o)
-	if err != nil {
-		t.Fatal(err)
-	}
-	path := filepath.Join(dir, "built-rig.csv")
-	if err := ingest.WriteAtomic(path, func(w io.Writer) error {
-		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-	}); err != nil {
-		t.Fatal(err)
-	}
-	return path
+	return simulated(t, filepath.Join(dir, "built-rig.csv"), builtCar, "rig", o)
 }
 
 // TestBuiltCarAgainstDesign: the design setup with loose targets passes and

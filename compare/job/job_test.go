@@ -19,20 +19,27 @@ import (
 // exampleSetup is the invented example car with a two-post rig.
 const exampleSetup = "../../testdata/example/hatchback.toml"
 
-// writeLog simulates a log of the example car (the model is the truth here)
-// and writes it into dir.
-func writeLog(t *testing.T, dir, test string, durationS float64) string {
+// exampleCar is the example setup's design car: the truth of the tests'
+// simulated logs.
+func exampleCar(t *testing.T) compare.Vehicle {
 	t.Helper()
 	setup, err := ingest.LoadSetup(exampleSetup)
 	if err != nil {
 		t.Fatal(err)
 	}
-	car := compare.DesignOf(setup.Vehicle)
-	o := simulate.Defaults(test)
-	o.NoiseFraction, o.Seed = 0.02, 7
+	return compare.DesignOf(setup.Vehicle)
+}
+
+// simulated simulates a log of car as the example setup's sensors (and, for
+// a rig test, pans) record it, with the options o, and writes it to path.
+func simulated(t *testing.T, path string, car compare.Vehicle, test string, o simulate.Options) string {
+	t.Helper()
+	setup, err := ingest.LoadSetup(exampleSetup)
+	if err != nil {
+		t.Fatal(err)
+	}
 	var log *simulate.Log
 	if test == "rig" {
-		o.DurationS = durationS
 		log, err = simulate.Rig(car, setup.Sensors, setup.Inputs, o)
 	} else {
 		log, err = simulate.Drop(car, setup.Sensors, o)
@@ -40,13 +47,24 @@ func writeLog(t *testing.T, dir, test string, durationS float64) string {
 	if err != nil {
 		t.Fatal(err)
 	}
-	path := filepath.Join(dir, test+".csv")
 	if err := ingest.WriteAtomic(path, func(w io.Writer) error {
 		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
 	}); err != nil {
 		t.Fatal(err)
 	}
 	return path
+}
+
+// writeLog simulates a log of the example car (the model is the truth here)
+// at 2 % noise and writes it into dir.
+func writeLog(t *testing.T, dir, test string, durationS float64) string {
+	t.Helper()
+	o := simulate.Defaults(test)
+	o.NoiseFraction, o.Seed = 0.02, 7
+	if test == "rig" {
+		o.DurationS = durationS
+	}
+	return simulated(t, filepath.Join(dir, test+".csv"), exampleCar(t), test, o)
 }
 
 // TestOptionMistakesAreOptionErrors: every option that cannot fit the test

@@ -2,7 +2,6 @@ package job_test
 
 import (
 	"context"
-	"io"
 	"math"
 	"path/filepath"
 	"strings"
@@ -11,30 +10,15 @@ import (
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/compare/job"
 	"github.com/ridemodes/ridemodes/compare/simulate"
-	"github.com/ridemodes/ridemodes/ingest"
 )
 
 // dropLog simulates a drop of car (both axles at once) logged at 500 Hz with
 // 1 % noise by the example setup's sensors.
 func dropLog(t *testing.T, dir string, car compare.Vehicle, seed uint64) string {
 	t.Helper()
-	setup, err := ingest.LoadSetup(exampleSetup)
-	if err != nil {
-		t.Fatal(err)
-	}
 	o := simulate.Defaults("drop")
 	o.NoiseFraction, o.Seed, o.RateHz = 0.01, seed, 500
-	log, err := simulate.Drop(car, setup.Sensors, o)
-	if err != nil {
-		t.Fatal(err)
-	}
-	path := filepath.Join(dir, "drop-"+string(rune('a'+seed))+".csv")
-	if err := ingest.WriteAtomic(path, func(w io.Writer) error {
-		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-	}); err != nil {
-		t.Fatal(err)
-	}
-	return path
+	return simulated(t, filepath.Join(dir, "drop-"+string(rune('a'+seed))+".csv"), car, "drop", o)
 }
 
 // TestPooledDrops: three drops of one car pool to a pitch node whose sd is
@@ -45,11 +29,7 @@ func dropLog(t *testing.T, dir string, car compare.Vehicle, seed uint64) string 
 // (testdata/calibration): pooling cuts the random error, not a bias.
 func TestPooledDrops(t *testing.T) {
 	dir := t.TempDir()
-	setup, err := ingest.LoadSetup(exampleSetup)
-	if err != nil {
-		t.Fatal(err)
-	}
-	car := compare.DesignOf(setup.Vehicle)
+	car := exampleCar(t)
 	var logs []string
 	for seed := range uint64(3) {
 		logs = append(logs, dropLog(t, dir, car, seed+1))

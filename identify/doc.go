@@ -9,7 +9,9 @@
 //   - modal: the mode indicator, the multi-mode pole-residue fit of the FRFs
 //     with common poles, mode shapes and uncertainties (rig tests);
 //   - decay: release detection and the multi-output free-decay fit (drop
-//     tests).
+//     tests);
+//   - spool: a recorded stream of sample blocks, replayed in bounded memory
+//     (the rig route's decimated stream, for the resolution choice).
 //
 // Both routes return the measured modes of package body (body.Mode), sorted,
 // labelled and given their node's uncertainty by one rule
@@ -28,5 +30,5 @@
 //
 // Place in the flow ingest -> identify -> compare -> plots -> cmd: the
 // identify layer. It may import ingest and its own subpackages (spectral,
-// modal, decay, body, lsq), never compare, plots or cmd.
+// modal, decay, body, lsq, spool), never compare, plots or cmd.
 package identify

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/ridemodes/ridemodes/identify/spectral"
+	"github.com/ridemodes/ridemodes/identify/spool"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
@@ -118,7 +119,10 @@ func (o *FRFOptions) defaults() error {
 // when the setup has rig inputs, the FRFs from the front and rear pans to
 // every body sensor. Two or more pans on one axle (a four-post rig) are
 // averaged into the axle's input, with a warning when they were not driven
-// together.
+// together. When the segment length is chosen from the data, the decimated
+// stream is spooled (package identify/spool: memory stays bounded on the
+// longest logs) and the candidate lengths are estimated after the read
+// (spectral.Bank); a given length is accumulated during the read.
 //
 // The sample rate: the blocks carry the rate known from a log's first steps
 // (ingest.Block.SampleRateHz), the whole log's rate being known only at its
@@ -127,7 +131,8 @@ func (o *FRFOptions) defaults() error {
 // is set in fractions of the rate: the decimation factor q and the
 // anti-alias filter. Every frequency comes from the rate given to Result:
 // the spectra count segments in samples, so their frequency axis, densities
-// and noise bandwidth follow the final rate exactly (spectral.Bank.SetRate).
+// and noise bandwidth follow the final rate exactly (the Bank is made with it,
+// an Accumulator takes it by SetRate).
 // The two rates differ by the time stamps' rounding and jitter (ingest
 // bounds it well under 30 %), far less than the factor spectraSpan between
 // the band's upper edge and the frequency that fixed q, so the band stays
@@ -141,11 +146,12 @@ type FRFStage struct {
 
 	fsHz  float64              // rate of the stream: early until Result
 	q     int                  // decimation factor (1: none)
-	sink  spectral.BlockWriter // decimator, or the accumulators directly
-	bank  *spectral.Bank       // when the segment length is chosen from the data
+	sink  spectral.BlockWriter // decimator, or the spool or accumulator directly
+	spool *spool.Spool         // when the segment length is chosen from the data
 	acc   *spectral.Accumulator
-	buf   [][]float64 // one block of stage channels
-	pairs []pairStats // per extra pan of an axle: its correlation with the first
+	view  [][]float64  // one block of stage channels: the block's columns or mean
+	mean  [2][]float64 // the mean of an axle's pans, for an axle of several
+	pairs []pairStats  // per extra pan of an axle: its correlation with the first
 }
 
 // pairStats accumulates the correlation of two pans of one axle.
@@ -265,12 +271,10 @@ func (s *FRFStage) start(fsHz float64) error {
 		}
 		s.acc, s.sink = acc, acc
 	} else {
-		bank, err := spectral.NewBank(spectral.BankConfig{FsHz: outHz, Window: s.opt.Window,
-			Workers: s.opt.Workers}, s.names)
-		if err != nil {
-			return err
-		}
-		s.bank, s.sink = bank, bank
+		// The candidate segment lengths are estimated after the read, on
+		// the spooled decimated stream (spectral.Bank).
+		s.spool = spool.New(len(s.names))
+		s.sink = s.spool
 	}
 	if s.q > 1 {
 		dec, err := spectral.NewDecimator(s.q, len(s.names), fsHz, s.sink)
@@ -279,7 +283,7 @@ func (s *FRFStage) start(fsHz float64) error {
 		}
 		s.sink = dec
 	}
-	s.buf = make([][]float64, len(s.names))
+	s.view = make([][]float64, len(s.names))
 	return nil
 }
 
@@ -290,27 +294,30 @@ func (s *FRFStage) Consume(b ingest.Block) error {
 			return err
 		}
 	}
+	// The stage's channels are the block's own columns, but for an axle
+	// of several pans, whose mean is built in s.mean.
 	n := b.Len()
-	for i := range s.buf {
-		if cap(s.buf[i]) < n {
-			s.buf[i] = make([]float64, n)
-		}
-		s.buf[i] = s.buf[i][:n]
-	}
 	if s.nIn == 2 {
 		for ax, cols := range s.axleCols {
-			dst := s.buf[ax]
+			if len(cols) == 1 {
+				s.view[ax] = b.Data[cols[0]]
+				continue
+			}
+			if cap(s.mean[ax]) < n {
+				s.mean[ax] = make([]float64, n)
+			}
+			dst := s.mean[ax][:n]
 			copy(dst, b.Data[cols[0]])
 			for _, c := range cols[1:] {
 				for j, v := range b.Data[c] {
 					dst[j] += v
 				}
 			}
-			if k := float64(len(cols)); k > 1 {
-				for j := range dst {
-					dst[j] /= k
-				}
+			k := float64(len(cols))
+			for j := range dst {
+				dst[j] /= k
 			}
+			s.view[ax] = dst
 		}
 		for pi := range s.pairs {
 			p := &s.pairs[pi]
@@ -320,10 +327,23 @@ func (s *FRFStage) Consume(b ingest.Block) error {
 		}
 	}
 	for k, c := range s.sensorCol {
-		copy(s.buf[s.nIn+k], b.Data[c])
+		s.view[s.nIn+k] = b.Data[c]
 	}
-	s.sink.Write(s.buf)
+	s.sink.Write(s.view)
 	return nil
+}
+
+// Close releases what the stage holds of the stream (its spool and the
+// spool's temporary file). Result closes the stage; a caller that stops
+// before Result, on an error of the stream, should close it. Close may be
+// called more than once.
+func (s *FRFStage) Close() error {
+	if s.spool == nil {
+		return nil
+	}
+	err := s.spool.Close()
+	s.spool = nil
+	return err
 }
 
 // FRFResult is what an FRFStage estimated.
@@ -343,20 +363,23 @@ type FRFResult struct {
 
 // Result finishes the estimate after the last block. sampleRateHz is the
 // stream's rate over the whole log (ingest.Summary.SampleRateHz): every
-// frequency of the result comes from it.
+// frequency of the result comes from it. It closes the stage (Close).
 func (s *FRFStage) Result(sampleRateHz float64) (*FRFResult, error) {
 	if s.sink == nil {
 		return nil, errors.New("the log held no samples")
 	}
+	defer s.Close()
 	if err := s.checkNyquist(sampleRateHz); err != nil {
 		return nil, err
 	}
 	s.fsHz = sampleRateHz
+	outHz := sampleRateHz / float64(s.q)
+	var bank *spectral.Bank
 	var err error
-	if s.bank != nil {
-		err = s.bank.SetRate(sampleRateHz / float64(s.q))
+	if s.spool != nil {
+		bank, err = spectral.NewBank(spectral.BankConfig{FsHz: outHz, Window: s.opt.Window, Workers: s.opt.Workers}, s.names, s.spool)
 	} else {
-		err = s.acc.SetRate(sampleRateHz / float64(s.q))
+		err = s.acc.SetRate(outHz)
 	}
 	if err != nil {
 		return nil, err
@@ -374,8 +397,8 @@ func (s *FRFStage) Result(sampleRateHz float64) (*FRFResult, error) {
 		r.Reasons = append(r.Reasons, fmt.Sprintf("decimated by %d from %.6g Hz to %.6g Hz (anti-alias FIR) before the FFTs: the band ends at %g Hz",
 			s.q, s.fsHz, s.fsHz/float64(s.q), s.opt.BandHighHz))
 	}
-	if s.bank != nil {
-		r.Choice, r.Spectra, err = s.bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band, MaxBias: s.opt.MaxResolutionBias,
+	if bank != nil {
+		r.Choice, r.Spectra, err = bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band, MaxBias: s.opt.MaxResolutionBias,
 			MinAverages: fitMinAverages, DampingErrorScale: fitDampingErrorScale})
 		if err != nil {
 			return nil, err

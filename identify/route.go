@@ -144,6 +144,7 @@ func Spectra(ctx context.Context, r *ingest.Reader, setup *ingest.Setup, test st
 	if err != nil {
 		return nil, ingest.Summary{}, err
 	}
+	defer stage.Close()
 	sum, err := r.Stream(cancellable(ctx, stage.Consume))
 	if err != nil {
 		return nil, sum, err

@@ -4,7 +4,9 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"runtime"
 	"sort"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -165,36 +167,66 @@ func denominator(b *band, order int, extra []float64) (*mat.VecDense, []*mat.Den
 	n1 := order + 1
 	ws := 2 * math.Pi * b.hiHz
 	M := mat.NewSymDense(n1, nil)
-	R := mat.NewSymDense(n1, nil)
-	S := mat.NewDense(n1, n1, nil)
-	T := mat.NewSymDense(n1, nil)
+	// The sums of R, S and T run over every bin: plain row-major slices
+	// (R and T upper triangles only), wrapped as matrices once per pair.
+	rSum := make([]float64, n1*n1)
+	sSum := make([]float64, n1*n1)
+	tSum := make([]float64, n1*n1)
+	R := mat.NewSymDense(n1, rSum)
+	S := mat.NewDense(n1, n1, sSum)
+	T := mat.NewSymDense(n1, tSum)
 	var chol mat.Cholesky
 	var prod mat.Dense
 	rs := make([]*mat.Dense, b.pairs)
-	pow := make([]complex128, n1)
+	// x = i u is purely imaginary, so x^j = i^j u^j and
+	// conj(x^j) x^l = i^(l-j) u^(j+l): real when j and l have the same
+	// parity, imaginary otherwise. The sums take that form: pw[j] is u^j
+	// (by repeated products, as the powers of x would be), sg[j] the sign
+	// of i^j's real or imaginary unit (+ + - - ...). Every term is the
+	// product the complex arithmetic would round, with its sign, and the
+	// terms a zero would add are left out.
+	pw := make([]float64, n1)
+	sg := make([]float64, n1)
+	for j := range sg {
+		sg[j] = 1
+		if j%4 >= 2 {
+			sg[j] = -1
+		}
+	}
 	for p := range b.pairs {
-		R.Zero()
-		S.Zero()
-		T.Zero()
+		clear(rSum)
+		clear(sSum)
+		clear(tSum)
 		for n, om := range b.omega {
 			w2 := extra[n] / (b.sigma[p][n] * b.sigma[p][n])
-			h := b.h[p][n]
-			a2 := real(h)*real(h) + imag(h)*imag(h)
-			x := complex(0, om/ws)
-			pow[0] = 1
+			hr, hi := real(b.h[p][n]), imag(b.h[p][n])
+			wa := w2 * (hr*hr + hi*hi) // w2 |H|^2
+			u := om / ws
+			pw[0] = 1
 			for j := 1; j < n1; j++ {
-				pow[j] = pow[j-1] * x
+				pw[j] = pw[j-1] * u
 			}
 			for j := range n1 {
-				cj := cmplx.Conj(pow[j])
-				for l := range n1 {
-					q := cj * pow[l] // conj(x^j) x^l
+				rRow, sRow, tRow := rSum[j*n1:(j+1)*n1], sSum[j*n1:(j+1)*n1], tSum[j*n1:(j+1)*n1]
+				// same parity: q = conj(x^j) x^l = sg[j] sg[l] u^j u^l, real
+				for l := j & 1; l < n1; l += 2 {
+					q := sg[j] * sg[l] * (pw[j] * pw[l])
 					if l >= j {
-						R.SetSym(j, l, R.At(j, l)+w2*real(q))
-						T.SetSym(j, l, T.At(j, l)+w2*a2*real(q))
+						rRow[l] += w2 * q
+						tRow[l] += wa * q
 					}
 					// S[j][l] = Re(conj(X_j)^T Y_l) with Y = -w H x^l.
-					S.Set(j, l, S.At(j, l)-w2*real(q*h))
+					sRow[l] -= w2 * (q * hr)
+				}
+				// other parity: q = +-i sg[j] sg[l] u^j u^l (+ for even j),
+				// so Re(q H) = -+ sg[j] sg[l] u^j u^l Im(H)
+				for l := 1 - j&1; l < n1; l += 2 {
+					v := sg[j] * sg[l] * (pw[j] * pw[l])
+					if j&1 == 0 {
+						sRow[l] -= w2 * -(v * hi)
+					} else {
+						sRow[l] -= w2 * (v * hi)
+					}
 				}
 			}
 		}
@@ -328,15 +360,39 @@ type StabilisationPoint struct {
 }
 
 // stabilise sweeps the LSCF orders 2..maxOrder and classifies the poles.
+// The orders are fitted concurrently (up to GOMAXPROCS at once, highest
+// order first, as it takes longest) and classified in order afterwards, so
+// the result does not depend on the scheduling.
 //
 // Very clean data makes the higher orders' equations singular (the model
 // needs no more poles than the data hold): the sweep then ends at the last
 // order that solved, provided that is at least minSweepOrder, and returns
 // it as reached.
 func stabilise(b *band, maxOrder int) (pts []StabilisationPoint, reached int, err error) {
+	type orderFit struct {
+		poles  []complex128
+		shapes [][]complex128
+		err    error
+	}
+	fits := make([]orderFit, maxOrder+1)
+	orders := make(chan int, maxOrder)
+	for order := maxOrder; order >= 2; order-- {
+		orders <- order
+	}
+	close(orders)
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), maxOrder-1) {
+		wg.Go(func() {
+			for order := range orders {
+				f := &fits[order]
+				f.poles, f.shapes, f.err = lscfPoles(b, order)
+			}
+		})
+	}
+	wg.Wait()
 	var prev []StabilisationPoint
 	for order := 2; order <= maxOrder; order++ {
-		poles, shapes, err := lscfPoles(b, order)
+		poles, shapes, err := fits[order].poles, fits[order].shapes, fits[order].err
 		if err != nil {
 			if order > minSweepOrder {
 				return pts, order - 1, nil

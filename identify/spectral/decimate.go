@@ -22,8 +22,9 @@ const (
 	designMarginDB = 3
 )
 
-// BlockWriter takes blocks of samples, one slice per channel; Accumulator,
-// Bank and Decimator are BlockWriters.
+// BlockWriter takes blocks of samples, one slice per channel; Accumulator
+// and Decimator are BlockWriters, and so is a spool (package identify/spool)
+// that records a stream for a Bank.
 type BlockWriter interface {
 	Write(block [][]float64)
 }

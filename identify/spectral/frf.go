@@ -27,6 +27,9 @@ type FRFOptions struct {
 	BandHz                 [2]float64
 	MaxCondition           float64
 	MaxInseparableFraction float64
+	// bandOnly leaves every bin outside BandHz NaN (Condition too): the
+	// resolution choice's quick estimates look at the band alone.
+	bandOnly bool
 }
 
 // Method says how an FRFSet was estimated.
@@ -97,10 +100,11 @@ type FRFSet struct {
 	Warnings  []Warning
 }
 
-// EstimateFRF estimates the FRFs of the output channels on the input
-// channels (indices into s.Channels) from the spectral matrix: the
-// multiple-input H1 (H1 = Gxy/Gxx for one input), multiple and partial
-// coherence, the condition number of Gxx and random-error bands.
+// EstimateFRF estimates the FRFs of the output channels on one or two
+// input channels (indices into s.Channels; a rig's front and rear pans)
+// from the spectral matrix: the multiple-input H1 (H1 = Gxy/Gxx for one
+// input), multiple and partial coherence, the condition number of Gxx and
+// random-error bands. More than two inputs panic.
 //
 // Bins where Gxx is singular (such as DC after a mean detrend) get NaN.
 // Correlated inputs: at bins in the band where cond(Gxx) exceeds MaxCondition the paths
@@ -157,6 +161,11 @@ func EstimateFRF(s *Spectra, inputs, outputs []int, opt FRFOptions) (*FRFSet, er
 	var bad []bool
 	inBand, nBad := 0, 0
 	for f, g := range s.G {
+		if opt.bandOnly && !bandContains(opt.BandHz, s.FreqsHz[f]) {
+			set.Condition[f] = math.NaN()
+			set.fillNaN(f)
+			continue
+		}
 		herm.load(g, inputs)
 		set.Condition[f] = herm.condition()
 		sep := set.Condition[f] <= opt.MaxCondition && herm.invert()

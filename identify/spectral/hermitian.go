@@ -1,69 +1,78 @@
 package spectral
 
 import (
+	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/mat"
 )
 
-// hermitian factors small Hermitian positive semi-definite matrices (the
-// input spectral matrix Gxx at one frequency) through their real embedding
-// [[Re, -Im], [Im, Re]], a symmetric matrix of twice the size with the same
-// eigenvalues, each twice, so gonum's real EigenSym and Cholesky serve.
-// Buffers are reused from one frequency to the next.
+// hermitian holds the input spectral matrix Gxx at one frequency, Hermitian
+// positive semi-definite, of one or two inputs (a rig's front and rear
+// pans), and its inverse in closed form. For two inputs,
+// G = [[a, b], [conj(b), d]] with a, d real: det = a d - |b|^2, the
+// eigenvalues are (a+d)/2 +- sqrt(((a-d)/2)^2 + |b|^2) (the smaller taken
+// as det over the larger, which does not cancel), and
+// G^-1 = [[d, -b], [-conj(b), a]] / det [textbook linear algebra].
 type hermitian struct {
-	q     int
-	emb   *mat.SymDense
-	eig   mat.EigenSym
-	chol  mat.Cholesky
-	inv   *mat.SymDense
-	evals []float64
+	q       int
+	a, d    float64
+	b       complex128
+	det     float64
+	inverse [2][2]complex128
 }
 
 func newHermitian(q int) *hermitian {
-	return &hermitian{
-		q:     q,
-		emb:   mat.NewSymDense(2*q, nil),
-		inv:   mat.NewSymDense(2*q, nil),
-		evals: make([]float64, 2*q),
+	if q < 1 || q > 2 {
+		panic(fmt.Sprintf("spectral: %d inputs; the FRF estimators take one or two", q))
 	}
+	return &hermitian{q: q}
 }
 
 // load sets the matrix to g[idx[i]][idx[k]].
 func (h *hermitian) load(g [][]complex128, idx []int) {
-	q := h.q
-	for i := 0; i < q; i++ {
-		for k := i; k < q; k++ {
-			v := g[idx[i]][idx[k]]
-			h.emb.SetSym(i, k, real(v))
-			h.emb.SetSym(q+i, q+k, real(v))
-			h.emb.SetSym(q+i, k, imag(v))
-			h.emb.SetSym(i, q+k, -imag(v))
-		}
+	h.a = real(g[idx[0]][idx[0]])
+	if h.q == 2 {
+		h.b = g[idx[0]][idx[1]]
+		h.d = real(g[idx[1]][idx[1]])
+		h.det = h.a*h.d - (real(h.b)*real(h.b) + imag(h.b)*imag(h.b))
 	}
+}
+
+// positive reports whether the matrix is positive definite.
+func (h *hermitian) positive() bool {
+	return h.a > 0 && (h.q == 1 || h.det > 0)
 }
 
 // condition returns the 2-norm condition number lambda_max/lambda_min; +Inf
 // when the matrix is singular or not positive definite.
 func (h *hermitian) condition() float64 {
-	if !h.eig.Factorize(h.emb, false) {
+	if !h.positive() {
 		return math.Inf(1)
 	}
-	h.eig.Values(h.evals)
-	lo, hi := h.evals[0], h.evals[len(h.evals)-1]
-	if !(lo > 0) {
-		return math.Inf(1)
+	if h.q == 1 {
+		return 1
 	}
-	return hi / lo
+	half := (h.a - h.d) / 2
+	hi := (h.a+h.d)/2 + math.Sqrt(half*half+real(h.b)*real(h.b)+imag(h.b)*imag(h.b))
+	return hi * hi / h.det
 }
 
-// invert factors the matrix for invAt; it reports false when the matrix is
-// not positive definite.
+// invert computes the inverse for invAt; it reports false when the matrix
+// is not positive definite.
 func (h *hermitian) invert() bool {
-	return h.chol.Factorize(h.emb) && h.chol.InverseTo(h.inv) == nil
+	if !h.positive() {
+		return false
+	}
+	if h.q == 1 {
+		h.inverse[0][0] = complex(1/h.a, 0)
+		return true
+	}
+	s := 1 / h.det
+	h.inverse = [2][2]complex128{
+		{complex(h.d*s, 0), -h.b * complex(s, 0)},
+		{complex(-real(h.b)*s, imag(h.b)*s), complex(h.a*s, 0)},
+	}
+	return true
 }
 
 // invAt returns element (i, k) of the inverse after a successful invert.
-func (h *hermitian) invAt(i, k int) complex128 {
-	return complex(h.inv.At(i, k), h.inv.At(h.q+i, k))
-}
+func (h *hermitian) invAt(i, k int) complex128 { return h.inverse[i][k] }

@@ -1,10 +1,10 @@
 package spectral
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"math/bits"
+	"sync"
 )
 
 // Defaults for the resolution choice.
@@ -62,15 +62,46 @@ type BankConfig struct {
 	Workers       int
 }
 
-// Bank runs Accumulators for several candidate segment lengths side by side
-// on one stream, so the resolution can be chosen after a single pass in
-// constant memory.
-type Bank struct {
-	accs []*Accumulator
+// A Recording plays a recorded stream of sample blocks back, in order and
+// unchanged, as often as asked (package identify/spool keeps one in bounded
+// memory). Replay passes every block to write, which does not keep it;
+// replays may run concurrently.
+type Recording interface {
+	Samples() int // samples per channel
+	Replay(write func(block [][]float64)) error
 }
 
-// NewBank returns a Bank for the named channels.
-func NewBank(cfg BankConfig, channels []string) (*Bank, error) {
+// Bank holds the candidate segment lengths of a recorded stream and runs
+// the Welch estimate of a candidate only when the resolution choice needs
+// its spectra (Choose): a choice looks at two or three of the nine default
+// candidates, and which ones depends on the damping found on the way. The
+// figures that decide which candidates are adequate (segments, effective
+// averages, noise bandwidth) follow from the record length alone.
+//
+// An estimate replays the whole recording through an Accumulator, so the
+// spectra are exactly those of an Accumulator fed the stream directly.
+type Bank struct {
+	cfg      BankConfig
+	channels []string
+	rec      Recording
+	cands    []*candidate
+}
+
+// candidate is one segment length of a Bank.
+type candidate struct {
+	cfg      Config
+	segments int
+	// nd is the effective number of averages, beHz the noise bandwidth:
+	// the values the candidate's Spectra will carry.
+	nd, beHz float64
+	// estimate runs the Welch estimate once and returns it ever after;
+	// it may be called from several goroutines.
+	estimate func() (*Spectra, error)
+}
+
+// NewBank returns a Bank over the recording rec of the named channels,
+// sampled at cfg.FsHz.
+func NewBank(cfg BankConfig, channels []string, rec Recording) (*Bank, error) {
 	if cfg.MinSegmentLen == 0 {
 		cfg.MinSegmentLen = 64
 	}
@@ -85,35 +116,41 @@ func NewBank(cfg BankConfig, channels []string) (*Bank, error) {
 	if cfg.MinSegmentLen > cfg.MaxSegmentLen {
 		return nil, fmt.Errorf("shortest candidate segment %d exceeds the longest %d", cfg.MinSegmentLen, cfg.MaxSegmentLen)
 	}
-	b := &Bank{}
+	b := &Bank{cfg: cfg, channels: channels, rec: rec}
+	samples := rec.Samples()
 	for n := cfg.MinSegmentLen; n <= cfg.MaxSegmentLen; n *= 2 {
-		acc, err := NewAccumulator(Config{FsHz: cfg.FsHz, SegmentLen: n, Overlap: n / 2,
-			Window: cfg.Window, Workers: cfg.Workers}, channels)
+		c := &candidate{cfg: Config{FsHz: cfg.FsHz, SegmentLen: n, Overlap: n / 2, Window: cfg.Window, Workers: cfg.Workers}}
+		if err := c.cfg.validate(); err != nil {
+			return nil, err
+		}
+		win, err := cfg.Window.Values(n)
 		if err != nil {
 			return nil, err
 		}
-		b.accs = append(b.accs, acc)
+		hop := n - c.cfg.Overlap
+		if samples >= n {
+			c.segments = (samples-n)/hop + 1
+		}
+		c.nd = effectiveAverages(win, hop, c.segments)
+		c.beHz = noiseBandwidthBins(win) * cfg.FsHz / float64(n)
+		c.estimate = sync.OnceValues(func() (*Spectra, error) {
+			acc, err := NewAccumulator(c.cfg, channels)
+			if err != nil {
+				return nil, err
+			}
+			if err := rec.Replay(acc.Write); err != nil {
+				return nil, err
+			}
+			return acc.Spectra()
+		})
+		b.cands = append(b.cands, c)
 	}
 	return b, nil
 }
 
-// Write passes the block to every candidate.
-func (b *Bank) Write(block [][]float64) {
-	for _, a := range b.accs {
-		a.Write(block)
-	}
-}
-
-// SetRate replaces the sample rate of every candidate (see
-// Accumulator.SetRate).
-func (b *Bank) SetRate(fsHz float64) error {
-	for _, a := range b.accs {
-		if err := a.SetRate(fsHz); err != nil {
-			return err
-		}
-	}
-	return nil
-}
+// estimate returns the spectra of candidate k, replaying the recording the
+// first time they are asked for.
+func (b *Bank) estimate(k int) (*Spectra, error) { return b.cands[k].estimate() }
 
 // ChoiceOptions tune Bank.Choose. The zero value selects the defaults.
 type ChoiceOptions struct {
@@ -207,38 +244,73 @@ func (b *Bank) Choose(inputs, outputs []int, opt ChoiceOptions) (*Choice, *Spect
 	if opt.FRF.BandHz == [2]float64{} {
 		opt.FRF.BandHz = opt.BandHz
 	}
-	var specs []*Spectra
-	for _, a := range b.accs {
-		s, err := a.Spectra()
-		if err != nil && !errors.Is(err, ErrTooShort) {
-			return nil, nil, err
-		}
-		specs = append(specs, s) // nil when too short
-	}
-	recordS := float64(b.accs[0].samples) / b.accs[0].cfg.FsHz
+	samples := b.rec.Samples()
+	recordS := float64(samples) / b.cfg.FsHz
 	c := &Choice{RecordS: recordS}
 	var adequate []int
-	for k, s := range specs {
-		if s != nil && s.EffectiveAverages >= opt.MinAverages {
+	for k, cd := range b.cands {
+		if cd.segments > 0 && cd.nd >= opt.MinAverages {
 			adequate = append(adequate, k)
 		}
 	}
 	if len(adequate) == 0 {
-		if specs[0] == nil {
-			return nil, nil, &ShortRecordError{Samples: b.accs[0].samples, SegmentLen: b.accs[0].cfg.SegmentLen, Need: 2}
+		cd := b.cands[0]
+		if cd.segments == 0 {
+			return nil, nil, &ShortRecordError{Samples: samples, SegmentLen: cd.cfg.SegmentLen, Need: 2}
 		}
-		s := specs[0]
 		c.Warnings = append(c.Warnings, Warning{Code: WarnFewAverages, Message: fmt.Sprintf(
 			"even the shortest candidate segment (%d samples) gives only %.1f effective averages, fewer than %g: error bands are wide; record longer",
-			s.SegmentLen, s.EffectiveAverages, opt.MinAverages)})
+			cd.cfg.SegmentLen, cd.nd, opt.MinAverages)})
 		adequate = []int{0}
 	}
 	c.Reasons = append(c.Reasons, fmt.Sprintf("%d of %d candidate segment lengths give at least %g effective averages",
-		len(adequate), len(specs), opt.MinAverages))
+		len(adequate), len(b.cands), opt.MinAverages))
+	// step is rule (3) and the next estimate of rule (4) for a half-power
+	// bandwidth brHz: the pick and the candidate to estimate on next.
+	step := func(brHz float64) (pick, next int) {
+		pick = -1
+		bestErr := math.Inf(1)
+		for _, k := range adequate {
+			cd := b.cands[k]
+			if resolutionBias(cd.beHz, brHz) > opt.MaxBias {
+				continue
+			}
+			if opt.DampingErrorScale == 0 {
+				pick = k
+				break
+			}
+			if e := dampingError(cd.beHz, cd.nd, brHz, recordS, opt.DampingErrorScale); e < bestErr {
+				pick, bestErr = k, e
+			}
+		}
+		if pick < 0 {
+			pick = adequate[len(adequate)-1]
+		}
+		next = adequate[0]
+		for k := pick; k > adequate[0]; k-- {
+			if cd := b.cands[k]; cd.segments > 0 && cd.nd >= quickMinAverages {
+				next = k
+				break
+			}
+		}
+		return pick, next
+	}
 	est := adequate[0]
+	// The first estimate, on the shortest candidate, seldom resolves a
+	// body-mode peak (the damping is then assumed): the estimate that would
+	// follow, for the assumed damping at the band's geometric centre, runs
+	// beside it. A wrong guess costs a replay, never the result.
+	var ahead sync.WaitGroup
+	defer ahead.Wait() // the recording stays the caller's to close
+	if _, guess := step(2 * opt.AssumedDamping * math.Sqrt(opt.BandHz[0]*opt.BandHz[1])); guess != est {
+		ahead.Go(func() { b.cands[guess].estimate() })
+	}
 	chosen := -1
-	for iter := 0; iter < len(specs); iter++ {
-		s := specs[est]
+	for iter := 0; iter < len(b.cands); iter++ {
+		s, err := b.estimate(est)
+		if err != nil {
+			return nil, nil, err
+		}
 		fnHz, zeta, ok, err := quickDamping(s, inputs, outputs, opt)
 		if err != nil {
 			return nil, nil, err
@@ -254,37 +326,17 @@ func (b *Bank) Choose(inputs, outputs []int, opt ChoiceOptions) (*Choice, *Spect
 				opt.BandHz[0], opt.BandHz[1], s.SegmentLen, opt.AssumedDamping)
 			c.Reasons = append(c.Reasons, msg)
 		}
-		pick := -1
-		bestErr := math.Inf(1)
-		for _, k := range adequate {
-			if resolutionBias(specs[k].NoiseBandwidthHz, c.halfPowerHz()) > opt.MaxBias {
-				continue
-			}
-			if opt.DampingErrorScale == 0 {
-				pick = k
-				break
-			}
-			if e := c.dampingError(specs[k], recordS, opt.DampingErrorScale); e < bestErr {
-				pick, bestErr = k, e
-			}
-		}
-		if pick < 0 {
-			pick = adequate[len(adequate)-1]
-		}
-		next := adequate[0]
-		for k := pick; k > adequate[0]; k-- {
-			if specs[k] != nil && specs[k].EffectiveAverages >= quickMinAverages {
-				next = k
-				break
-			}
-		}
+		pick, next := step(c.halfPowerHz())
 		if pick == chosen || next == est {
 			chosen = pick
 			break
 		}
 		chosen, est = pick, next
 	}
-	s := specs[chosen]
+	s, err := b.estimate(chosen)
+	if err != nil {
+		return nil, nil, err
+	}
 	c.SegmentLen, c.ResolutionHz, c.NoiseBandwidthHz = s.SegmentLen, s.ResolutionHz(), s.NoiseBandwidthHz
 	c.Segments, c.EffectiveAverages = s.Segments, s.EffectiveAverages
 	c.HalfPowerHz = c.halfPowerHz()
@@ -318,12 +370,13 @@ func (b *Bank) Choose(inputs, outputs []int, opt ChoiceOptions) (*Choice, *Spect
 func (c *Choice) halfPowerHz() float64 { return 2 * c.DampingRatio * c.PeakHz }
 
 // dampingError is the expected squared relative damping error of a fit to
-// the spectra s of a recordS-long record (Choose's bias-variance rule).
-func (c *Choice) dampingError(s *Spectra, recordS, scale float64) float64 {
-	br := c.halfPowerHz()
-	r := s.NoiseBandwidthHz / br
+// spectra of noise bandwidth beHz and nd effective averages from a
+// recordS-long record, for a half-power bandwidth br (Choose's
+// bias-variance rule).
+func dampingError(beHz, nd, br, recordS, scale float64) float64 {
+	r := beHz / br
 	bias := dampingBiasCoefficient * r * r
-	return bias*bias + scale*scale/(br*recordS)*(1+fewAveragesPenalty/s.EffectiveAverages)
+	return bias*bias + scale*scale/(br*recordS)*(1+fewAveragesPenalty/nd)
 }
 
 func noiseBandwidthBinsOf(s *Spectra) float64 { return s.NoiseBandwidthHz / s.ResolutionHz() }
@@ -341,7 +394,9 @@ func resolutionBias(beHz, brHz float64) float64 {
 func quickDamping(s *Spectra, inputs, outputs []int, opt ChoiceOptions) (fnHz, zeta float64, ok bool, err error) {
 	mag := make([]float64, len(s.FreqsHz))
 	if len(inputs) > 0 {
-		set, err := EstimateFRF(s, inputs, outputs, opt.FRF)
+		fo := opt.FRF
+		fo.bandOnly = true // halfPower reads the band alone
+		set, err := EstimateFRF(s, inputs, outputs, fo)
 		if err != nil {
 			return 0, 0, false, err
 		}

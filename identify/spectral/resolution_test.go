@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"github.com/ridemodes/ridemodes/identify/spool"
 	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/floats"
 )
@@ -76,11 +77,7 @@ func TestChooseResolution(t *testing.T) {
 	for _, zeta := range []float64{0.2, 0.3} {
 		for _, seed := range []uint64{21, 22} {
 			ch := synthMode(fsHz, 1<<16, 1.3, zeta, seed)
-			bank, err := NewBank(BankConfig{FsHz: fsHz}, []string{"body"})
-			if err != nil {
-				t.Fatal(err)
-			}
-			writeBlocks(bank, ch, 1500)
+			bank := spooledBank(t, BankConfig{FsHz: fsHz}, []string{"body"}, ch, 1500)
 			c, sp, err := bank.Choose(nil, []int{0}, ChoiceOptions{BandHz: [2]float64{0.3, 5}})
 			if err != nil {
 				t.Fatal(err)
@@ -109,11 +106,7 @@ func TestChooseResolution(t *testing.T) {
 func TestChooseWarnsOnShortRecord(t *testing.T) {
 	const fsHz = 20.0
 	ch := synthMode(fsHz, 1800, 1.3, 0.2, 23)
-	bank, err := NewBank(BankConfig{FsHz: fsHz}, []string{"body"})
-	if err != nil {
-		t.Fatal(err)
-	}
-	writeBlocks(bank, ch, 999)
+	bank := spooledBank(t, BankConfig{FsHz: fsHz}, []string{"body"}, ch, 999)
 	c, _, err := bank.Choose(nil, []int{0}, ChoiceOptions{BandHz: [2]float64{0.3, 5}})
 	if err != nil {
 		t.Fatal(err)
@@ -132,11 +125,7 @@ func TestChooseWarnsOnShortRecord(t *testing.T) {
 // all pairs; the merged bounce/pitch peak gives a damping in the body range.
 func TestChooseOnRig(t *testing.T) {
 	rec := synthRig(testCar(), independentPans, 0, 20, 1<<15, 24, outputNoiseFrac, 0)
-	bank, err := NewBank(BankConfig{FsHz: 20, MaxSegmentLen: 4096}, rigChannels)
-	if err != nil {
-		t.Fatal(err)
-	}
-	writeBlocks(bank, rec.channels, 4000)
+	bank := spooledBank(t, BankConfig{FsHz: 20, MaxSegmentLen: 4096}, rigChannels, rec.channels, 4000)
 	c, _, err := bank.Choose([]int{0, 1}, []int{2, 3}, ChoiceOptions{BandHz: frfBandHz})
 	if err != nil {
 		t.Fatal(err)
@@ -163,11 +152,7 @@ func TestChooseTradesBiasForRecord(t *testing.T) {
 	for _, recordS := range []float64{300, 3600} {
 		for _, zeta := range []float64{0.08, 0.3} {
 			ch := synthMode(fsHz, int(recordS*fsHz), 1.3, zeta, 31)
-			bank, err := NewBank(BankConfig{FsHz: fsHz}, []string{"body"})
-			if err != nil {
-				t.Fatal(err)
-			}
-			writeBlocks(bank, ch, 1500)
+			bank := spooledBank(t, BankConfig{FsHz: fsHz}, []string{"body"}, ch, 1500)
 			c, _, err := bank.Choose(nil, []int{0}, ChoiceOptions{BandHz: [2]float64{0.3, 5},
 				MinAverages: minAverages, MaxBias: 0.003, DampingErrorScale: errorScale})
 			if err != nil {
@@ -189,6 +174,60 @@ func TestChooseTradesBiasForRecord(t *testing.T) {
 		light, heavy := chosen[[2]float64{recordS, 0.08}], chosen[[2]float64{recordS, 0.3}]
 		if light < heavy || (recordS == 3600 && light == heavy) {
 			t.Errorf("%g s: N=%d at zeta 0.08, N=%d at zeta 0.3; want longer for the lighter damping", recordS, light, heavy)
+		}
+	}
+}
+
+// spooledBank records the channels in blocks of blockLen samples, as the
+// FRF stage does, and returns a Bank over the recording.
+func spooledBank(t *testing.T, cfg BankConfig, names []string, channels [][]float64, blockLen int) *Bank {
+	t.Helper()
+	sp := spool.New(len(channels))
+	t.Cleanup(func() { sp.Close() })
+	writeBlocks(sp, channels, blockLen)
+	bank, err := NewBank(cfg, names, sp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return bank
+}
+
+// TestBankEstimateIsAccumulator: a Bank's spectra of a candidate, replayed
+// from the spool, are bit for bit those of an Accumulator fed the stream
+// directly in other blocks (segments are counted in samples), for a
+// one-lane and a two-lane length; the adequacy figures the Bank computes
+// from the record length alone are those the spectra carry.
+func TestBankEstimateIsAccumulator(t *testing.T) {
+	rec := synthRig(testCar(), independentPans, 0, 20, 1<<15, 25, outputNoiseFrac, 0)
+	bank := spooledBank(t, BankConfig{FsHz: 20, MinSegmentLen: 1024, MaxSegmentLen: 4096}, rigChannels, rec.channels, 333)
+	for k, cd := range bank.cands {
+		got, err := bank.estimate(k)
+		if err != nil {
+			t.Fatal(err)
+		}
+		acc, err := NewAccumulator(cd.cfg, rigChannels)
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeBlocks(acc, rec.channels, 4000)
+		want, err := acc.Spectra()
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got.Segments != want.Segments || got.EffectiveAverages != cd.nd || got.EffectiveAverages != want.EffectiveAverages ||
+			got.NoiseBandwidthHz != cd.beHz || got.NoiseBandwidthHz != want.NoiseBandwidthHz || cd.segments != want.Segments {
+			t.Fatalf("N=%d: bank segments %d (%d), nd %v (%v), Be %v (%v); accumulator %d, %v, %v", cd.cfg.SegmentLen,
+				got.Segments, cd.segments, got.EffectiveAverages, cd.nd, got.NoiseBandwidthHz, cd.beHz,
+				want.Segments, want.EffectiveAverages, want.NoiseBandwidthHz)
+		}
+		for f := range want.G {
+			for i := range want.G[f] {
+				for j := range want.G[f][i] {
+					if got.G[f][i][j] != want.G[f][i][j] {
+						t.Fatalf("N=%d: G[%d][%d][%d] = %v from the bank, %v from the accumulator", cd.cfg.SegmentLen, f, i, j, got.G[f][i][j], want.G[f][i][j])
+					}
+				}
+			}
 		}
 	}
 }

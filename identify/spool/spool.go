@@ -1,0 +1,163 @@
+// Package spool records a stream of multichannel sample blocks and plays it
+// back, in order and bit for bit, as often as asked, in bounded memory: the
+// first MemoryBytes of samples stay in memory, the rest go to a temporary
+// file. The rig route spools the decimated stream (about 0.7 kB per second
+// of log at four channels) so that the resolution choice can run Welch
+// estimates at the few segment lengths it needs after the whole log has been
+// read, instead of running every candidate length during the read.
+//
+// Samples are float64, stored as their IEEE 754 bits (little-endian), so a
+// replay gives back exactly what was written. Units are the caller's.
+//
+// The temporary file is created in os.TempDir and removed at once where the
+// system allows an open file to be removed (so nothing is left behind even
+// if the process is killed), else by Close. If no temporary file can be
+// made, the spool keeps everything in memory.
+//
+// Place in the flow ingest -> identify -> compare -> plots -> cmd: the
+// identify layer; it imports the standard library only.
+package spool
+
+import (
+	"encoding/binary"
+	"fmt"
+	"math"
+	"os"
+)
+
+// MemoryBytes is how many bytes of samples a Spool keeps in memory before
+// it moves them to its temporary file: a ten-minute four-channel stream at
+// 20 Hz (about 0.4 MB) stays in memory.
+const MemoryBytes = 1 << 20
+
+// replayBytes is the size of the buffer a replay reads the file through.
+const replayBytes = 64 << 10
+
+// Spool records blocks of samples. The zero value is not usable; call New.
+type Spool struct {
+	nch     int
+	samples int
+	mem     []byte // encoded samples not in the file
+	file    *os.File
+	removed bool  // the file's name is gone from its folder
+	fileLen int64 // bytes in the file
+	inMem   bool  // a temporary file could not be made: keep everything in memory
+	err     error // the first write error; Replay returns it
+}
+
+// New returns an empty Spool for blocks of nch channels.
+func New(nch int) *Spool {
+	if nch < 1 {
+		panic("spool: need at least one channel")
+	}
+	return &Spool{nch: nch}
+}
+
+// Samples returns the number of samples per channel recorded so far.
+func (s *Spool) Samples() int { return s.samples }
+
+// Write records a block: one slice per channel, all of one length. It
+// panics if the block does not match the channels. A failure to write the
+// temporary file is kept and returned by Replay.
+func (s *Spool) Write(block [][]float64) {
+	if len(block) != s.nch {
+		panic(fmt.Sprintf("spool: block has %d channels, spool has %d", len(block), s.nch))
+	}
+	m := len(block[0])
+	for ch, x := range block {
+		if len(x) != m {
+			panic(fmt.Sprintf("spool: channel %d of the block has %d samples, channel 0 has %d", ch, len(x), m))
+		}
+	}
+	for i := range m {
+		for _, x := range block {
+			s.mem = binary.LittleEndian.AppendUint64(s.mem, math.Float64bits(x[i]))
+		}
+	}
+	s.samples += m
+	if len(s.mem) >= MemoryBytes && !s.inMem && s.err == nil {
+		s.spill()
+	}
+}
+
+// spill moves the samples in memory to the end of the temporary file.
+func (s *Spool) spill() {
+	if s.file == nil {
+		f, err := os.CreateTemp("", "ridemodes-spool-*")
+		if err != nil {
+			s.inMem = true // carry on in memory
+			return
+		}
+		s.file = f
+		s.removed = os.Remove(f.Name()) == nil
+	}
+	if _, err := s.file.WriteAt(s.mem, s.fileLen); err != nil {
+		s.err = fmt.Errorf("spool: writing the temporary file %s: %w", s.file.Name(), err)
+		return
+	}
+	s.fileLen += int64(len(s.mem))
+	s.mem = s.mem[:0]
+}
+
+// Replay passes every recorded sample to write, in order, in blocks of at
+// most replayBytes/8/nch samples per channel; write must not keep the block.
+// It returns the first error of writing or reading the temporary file.
+// Replays may run concurrently with each other, not with Write or Close.
+func (s *Spool) Replay(write func(block [][]float64)) error {
+	if s.err != nil {
+		return s.err
+	}
+	frame := 8 * s.nch
+	step := replayBytes / frame * frame
+	block := make([][]float64, s.nch)
+	for ch := range block {
+		block[ch] = make([]float64, step/frame)
+	}
+	if s.fileLen > 0 {
+		buf := make([]byte, step)
+		for off := int64(0); off < s.fileLen; {
+			b := buf[:min(int64(step), s.fileLen-off)]
+			if n, err := s.file.ReadAt(b, off); n < len(b) {
+				return fmt.Errorf("spool: reading the temporary file %s: %w", s.file.Name(), err)
+			}
+			s.play(b, block, write)
+			off += int64(len(b))
+		}
+	}
+	for off := 0; off < len(s.mem); off += step {
+		s.play(s.mem[off:min(off+step, len(s.mem))], block, write)
+	}
+	return nil
+}
+
+// play decodes whole frames of b into block and passes it on.
+func (s *Spool) play(b []byte, block [][]float64, write func(block [][]float64)) {
+	frame := 8 * s.nch
+	m := len(b) / frame
+	for ch := range block {
+		block[ch] = block[ch][:m]
+	}
+	for i := range m {
+		for ch, x := range block {
+			x[i] = math.Float64frombits(binary.LittleEndian.Uint64(b[i*frame+8*ch:]))
+		}
+	}
+	write(block)
+}
+
+// Close releases the memory and removes the temporary file. The Spool is
+// empty afterwards.
+func (s *Spool) Close() error {
+	s.mem, s.samples = nil, 0
+	if s.file == nil {
+		return nil
+	}
+	err := s.file.Close()
+	if !s.removed {
+		if rerr := os.Remove(s.file.Name()); rerr != nil && err == nil {
+			err = rerr
+		}
+	}
+	s.file, s.fileLen = nil, 0
+	return err
+}

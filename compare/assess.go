@@ -61,7 +61,11 @@ func (r *Result) AssessAgainst(setup *ingest.Setup) error {
 	if err != nil {
 		return err
 	}
-	a, err := Assess(measured, setup)
+	corr, err := r.ModeCorrelation.Correlation()
+	if err != nil {
+		return err
+	}
+	a, err := Assess(measured, corr, setup)
 	if err != nil {
 		return err
 	}

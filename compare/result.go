@@ -2,24 +2,30 @@ package compare
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
+	"strings"
 
+	"github.com/ridemodes/ridemodes/identify/body"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
 // Result is the JSON result of the contract. Commands fill the parts they
 // compute; empty parts are left out.
 type Result struct {
-	Tool       Tool         `json:"tool"`
-	Setup      *FileRef     `json:"setup,omitempty"`
-	Log        *LogRef      `json:"log,omitempty"`
-	Test       string       `json:"test,omitempty"`
-	Analysis   *Analysis    `json:"analysis,omitempty"`
-	Modes      []ModeJSON   `json:"modes,omitempty"`
-	Model      *ModelJSON   `json:"model,omitempty"`
-	Comparison []Comparison `json:"comparison,omitempty"`
-	Updated    *Updated     `json:"updated,omitempty"`
-	Checks     []Check      `json:"checks,omitempty"`
+	Tool     Tool       `json:"tool"`
+	Setup    *FileRef   `json:"setup,omitempty"`
+	Log      *LogRef    `json:"log,omitempty"`
+	Test     string     `json:"test,omitempty"`
+	Analysis *Analysis  `json:"analysis,omitempty"`
+	Modes    []ModeJSON `json:"modes,omitempty"`
+	// ModeCorrelation relates the measured modes' figures (one fit's);
+	// absent, they are taken as independent.
+	ModeCorrelation *ModeCorrelation `json:"mode_correlation,omitempty"`
+	Model           *ModelJSON       `json:"model,omitempty"`
+	Comparison      []Comparison     `json:"comparison,omitempty"`
+	Updated         *Updated         `json:"updated,omitempty"`
+	Checks          []Check          `json:"checks,omitempty"`
 	// Verdict answers the setup's targets; written by Assessment.Fill.
 	Verdict  *Verdict `json:"verdict,omitempty"`
 	Warnings []string `json:"warnings"`
@@ -49,6 +55,70 @@ type Analysis struct {
 	// CoherenceInBand is the mean multiple coherence of each body sensor's
 	// FRFs over the band (rig tests), in the setup's sensor order.
 	CoherenceInBand []float64 `json:"coherence_in_band,omitempty"`
+}
+
+// ModeCorrelation is the correlation matrix of the measured modes'
+// figures: Figures names them ("bounce.natural_frequency_hz", the mode's
+// label, a dot and the mode's key; see body.FigureName), Matrix[i][j] is the
+// correlation coefficient of figures i and j.
+type ModeCorrelation struct {
+	Figures []string    `json:"figures"`
+	Matrix  [][]float64 `json:"matrix"`
+}
+
+// CorrelationJSON returns c in the result's form (nil for nil).
+func CorrelationJSON(c *body.Correlation) *ModeCorrelation {
+	if c == nil {
+		return nil
+	}
+	return &ModeCorrelation{Figures: c.Figures, Matrix: c.Matrix}
+}
+
+// Correlation checks j and returns it as a body.Correlation (nil for nil):
+// a square, symmetric matrix with ones on the diagonal and coefficients
+// within [-1, 1], one row per named figure, each name a mode's label, a dot
+// and one of the keys natural_frequency_hz, damping_ratio,
+// pitch_per_bounce_rad_per_m, no name twice.
+func (j *ModeCorrelation) Correlation() (*body.Correlation, error) {
+	if j == nil {
+		return nil, nil
+	}
+	n := len(j.Figures)
+	if len(j.Matrix) != n {
+		return nil, fmt.Errorf("compare: mode_correlation has %d figures and %d matrix rows; give one row per figure",
+			n, len(j.Matrix))
+	}
+	seen := map[string]bool{}
+	for i, f := range j.Figures {
+		label, key, ok := strings.Cut(f, ".")
+		known := key == body.FigureNaturalFrequency || key == body.FigureDampingRatio || key == body.FigurePitchPerBounce
+		if !ok || (label != "bounce" && label != "pitch") || !known || seen[f] {
+			return nil, fmt.Errorf("compare: mode_correlation figure %d is %q; name each figure once as bounce or "+
+				"pitch, a dot and natural_frequency_hz, damping_ratio or pitch_per_bounce_rad_per_m", i+1, f)
+		}
+		seen[f] = true
+		if len(j.Matrix[i]) != n {
+			return nil, fmt.Errorf("compare: mode_correlation row %d has %d entries; give %d", i+1, len(j.Matrix[i]), n)
+		}
+	}
+	const symmetryTol = 1e-9
+	for i := range n {
+		for k := range n {
+			v := j.Matrix[i][k]
+			switch {
+			case i == k && math.Abs(v-1) > symmetryTol:
+				return nil, fmt.Errorf("compare: mode_correlation[%d][%d] is %g; a figure's correlation with itself is 1",
+					i+1, k+1, v)
+			case !(math.Abs(v) <= 1):
+				return nil, fmt.Errorf("compare: mode_correlation[%d][%d] is %g; a correlation lies within -1 and 1",
+					i+1, k+1, v)
+			case math.Abs(v-j.Matrix[k][i]) > symmetryTol:
+				return nil, fmt.Errorf("compare: mode_correlation[%d][%d] is %g but [%d][%d] is %g; the matrix is symmetric",
+					i+1, k+1, v, k+1, i+1, j.Matrix[k][i])
+			}
+		}
+	}
+	return &body.Correlation{Figures: j.Figures, Matrix: j.Matrix}, nil
 }
 
 // QuickEstimate is a single-mode estimate (peak picking with half-power

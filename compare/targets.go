@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/ridemodes/ridemodes/identify/body"
 	"github.com/ridemodes/ridemodes/ingest"
 )
 
@@ -34,10 +35,11 @@ type Assessment struct {
 
 // Assess sets the measured modes (from any test: rig or drop) beside the
 // setup's design model and returns the comparison, the updated rates, the
-// target checks and the ride guidance. Measured modes that are not one bounce
+// target checks and the ride guidance. corr relates the measured figures
+// for the rate update (nil: independent). Measured modes that are not one bounce
 // and one pitch mode, or a model without oscillating modes, are errors; a
 // measurement that the model cannot fit is not (UpdateErr).
-func Assess(measured []MeasuredMode, setup *ingest.Setup) (*Assessment, error) {
+func Assess(measured []MeasuredMode, corr *body.Correlation, setup *ingest.Setup) (*Assessment, error) {
 	design := DesignOf(setup.Vehicle)
 	model, err := design.Modes()
 	if err != nil {
@@ -49,7 +51,8 @@ func Assess(measured []MeasuredMode, setup *ingest.Setup) (*Assessment, error) {
 	if err != nil {
 		return nil, err
 	}
-	a.Update, a.UpdateErr = UpdateModel(design, measured, sensors, UpdateOptions{FreePitchInertia: setup.Update.FreePitchInertia})
+	a.Update, a.UpdateErr = UpdateModel(design, measured, sensors, UpdateOptions{FreePitchInertia: setup.Update.FreePitchInertia,
+		Correlation: corr})
 	if a.UpdateErr != nil {
 		a.Warnings = append(a.Warnings, a.UpdateErr.Error())
 	} else {

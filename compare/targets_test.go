@@ -71,7 +71,7 @@ func TestAssessVerdict(t *testing.T) {
 			for i := range meas {
 				meas[i].Sigma = sig
 			}
-			a, err := Assess(meas, setup)
+			a, err := Assess(meas, nil, setup)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -135,7 +135,7 @@ func TestAssessNoFit(t *testing.T) {
 					meas[i].Flagged, meas[i].FlagReasons = true, []string{"Its peak is under the noise floor."}
 				}
 			}
-			a, err := Assess(meas, setup)
+			a, err := Assess(meas, nil, setup)
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
 
+	"github.com/ridemodes/ridemodes/identify/body"
 	"github.com/ridemodes/ridemodes/identify/lsq"
 )
 
@@ -18,6 +19,9 @@ type UpdateOptions struct {
 	// inertia as well as the rates; it needs a measured mode shape beyond
 	// what the rates alone use.
 	FreePitchInertia bool
+	// Correlation relates the measured figures (one fit's modes, from
+	// identify: body.Correlation); nil treats them as independent.
+	Correlation *body.Correlation
 }
 
 // Method names of an Update.
@@ -69,14 +73,19 @@ const fdStep = 1e-6
 // with central-difference Jacobians (gonum diff/fd); with
 // opt.FreePitchInertia the pitch inertia is fitted too.
 //
-// Uncertainty: for the closed form, sigma_p^2 = sum_i (dp/dy_i)^2 sigma_i^2
-// over the measured frequencies and damping ratios y_i (independent), with
-// the Jacobian by central differences (gonum diff/fd). For the least squares,
-// the covariance of the parameters is (J^T J)^-1 with J the Jacobian of the
-// residuals divided by their sigmas, at the minimum (first-order
-// propagation). References: any text on least squares, e.g. W. H. Press et
-// al., Numerical Recipes, 3rd ed., Cambridge University Press, 2007, section
-// 15.5 (the covariance of a nonlinear fit).
+// Uncertainty: the measured values y_i have the covariance C_ij = rho_ij
+// sigma_i sigma_j, rho from opt.Correlation (independent without it). For
+// the closed form, sigma_p^2 = sum_ij (dp/dy_i) C_ij (dp/dy_j) over the
+// frequencies and damping ratios, with the Jacobian by central differences
+// (gonum diff/fd). The least squares whitens the residuals with the
+// Cholesky factor of C (generalised least squares: A. C. Aitken, "On least
+// squares and linear combination of observations", Proceedings of the Royal
+// Society of Edinburgh 55:42-48, 1935), and the covariance of the
+// parameters is (J^T J)^-1 with J the Jacobian of the whitened residuals at
+// the minimum (first-order propagation; e.g. W. H. Press et al., Numerical
+// Recipes, 3rd ed., Cambridge University Press, 2007, section 15.5). A C
+// that does not factorise (correlations given inconsistently) falls back to
+// independent values.
 func UpdateModel(design Vehicle, measured []MeasuredMode, sensorsXM []float64, opt UpdateOptions) (*Update, error) {
 	if len(measured) != 2 {
 		return nil, fmt.Errorf("%w (got %d modes)", ErrModes, len(measured))
@@ -84,7 +93,7 @@ func UpdateModel(design Vehicle, measured []MeasuredMode, sensorsXM []float64, o
 	ms := []MeasuredMode{measured[0], measured[1]}
 	sort.Slice(ms, func(i, j int) bool { return ms[i].NaturalFrequencyHz < ms[j].NaturalFrequencyHz })
 	u := &Update{Damped: ms[0].HasDamping() && ms[1].HasDamping()}
-	inputs, sigmas := closedFormInputs(ms, u.Damped)
+	inputs, sigmas, names := closedFormInputs(ms, u.Damped)
 	cands, err := closedForm(design, inputs, u.Damped)
 	if err != nil {
 		return nil, err
@@ -120,10 +129,11 @@ func UpdateModel(design Vehicle, measured []MeasuredMode, sensorsXM []float64, o
 				"unknowns (%d values for %d unknowns); measure the pitch per bounce of both modes, "+
 				"or keep the pitch inertia fixed", len(obs), nPar)
 		}
-		u.Sigma, u.HasSigma = closedFormSigma(design, inputs, sigmas, u.ClosedForm, u.Damped)
+		u.Sigma, u.HasSigma = closedFormSigma(design, inputs, covarianceOf(names, sigmas, opt.Correlation),
+			u.ClosedForm, u.Damped)
 		return u, nil
 	}
-	if err := u.leastSquares(obs, opt.FreePitchInertia); err != nil {
+	if err := u.leastSquares(obs, opt.FreePitchInertia, opt.Correlation); err != nil {
 		return nil, err
 	}
 	u.Method = MethodLeastSquares
@@ -131,15 +141,31 @@ func UpdateModel(design Vehicle, measured []MeasuredMode, sensorsXM []float64, o
 }
 
 // closedFormInputs returns (fn1, fn2[, zeta1, zeta2]) of modes sorted by
-// frequency, and their standard deviations.
-func closedFormInputs(ms []MeasuredMode, damped bool) (y, sig []float64) {
+// frequency, their standard deviations and their names (body.FigureName).
+func closedFormInputs(ms []MeasuredMode, damped bool) (y, sig []float64, names []string) {
 	y = []float64{ms[0].NaturalFrequencyHz, ms[1].NaturalFrequencyHz}
 	sig = []float64{ms[0].Sigma.NaturalFrequencyHz, ms[1].Sigma.NaturalFrequencyHz}
+	names = []string{body.FigureName(ms[0].Label, body.FigureNaturalFrequency),
+		body.FigureName(ms[1].Label, body.FigureNaturalFrequency)}
 	if damped {
 		y = append(y, ms[0].DampingRatio, ms[1].DampingRatio)
 		sig = append(sig, ms[0].Sigma.DampingRatio, ms[1].Sigma.DampingRatio)
+		names = append(names, body.FigureName(ms[0].Label, body.FigureDampingRatio),
+			body.FigureName(ms[1].Label, body.FigureDampingRatio))
 	}
-	return y, sig
+	return y, sig, names
+}
+
+// covarianceOf returns C_ij = rho_ij sig_i sig_j of the values named names
+// with standard deviations sig, rho from corr (nil: independent).
+func covarianceOf(names []string, sig []float64, corr *body.Correlation) *mat.SymDense {
+	c := mat.NewSymDense(len(names), nil)
+	for i := range names {
+		for j := i; j < len(names); j++ {
+			c.SetSym(i, j, corr.Coefficient(names[i], names[j])*sig[i]*sig[j])
+		}
+	}
+	return c
 }
 
 // closedForm returns the closed-form candidates for inputs (fn1, fn2[, zeta1, zeta2]).
@@ -162,12 +188,12 @@ func rateVector(r Rates, damped bool) []float64 {
 	return []float64{r.FrontRateNPerM, r.RearRateNPerM}
 }
 
-// closedFormSigma propagates sigmas of the closed-form inputs y to the
-// chosen root (followed by continuity: the candidate nearest to it).
-func closedFormSigma(body Vehicle, y, sig []float64, chosen Rates, damped bool) (Rates, bool) {
+// closedFormSigma propagates the covariance cov of the closed-form inputs y
+// to the chosen root (followed by continuity: the candidate nearest to it).
+func closedFormSigma(car Vehicle, y []float64, cov *mat.SymDense, chosen Rates, damped bool) (Rates, bool) {
 	given := false
-	for _, s := range sig {
-		given = given || s > 0
+	for i := range y {
+		given = given || cov.At(i, i) > 0
 	}
 	if !given {
 		return Rates{}, false
@@ -175,7 +201,7 @@ func closedFormSigma(body Vehicle, y, sig []float64, chosen Rates, damped bool) 
 	ref := rateVector(chosen, damped)
 	n := len(ref)
 	f := func(dst, x []float64) {
-		cands, err := closedForm(body, x, damped)
+		cands, err := closedForm(car, x, damped)
 		if err != nil {
 			for i := range dst {
 				dst[i] = math.NaN()
@@ -188,10 +214,8 @@ func closedFormSigma(body Vehicle, y, sig []float64, chosen Rates, damped bool) 
 	fd.Jacobian(jac, f, y, &fd.JacobianSettings{Formula: fd.Central, Step: fdStep})
 	out := make([]float64, n)
 	for r := 0; r < n; r++ {
-		for c := range y {
-			out[r] += sq(jac.At(r, c) * sig[c])
-		}
-		out[r] = math.Sqrt(out[r])
+		g := mat.NewVecDense(len(y), mat.Row(nil, r, jac))
+		out[r] = math.Sqrt(math.Max(mat.Inner(g, cov, g), 0))
 	}
 	s := Rates{FrontRateNPerM: out[0], RearRateNPerM: out[1]}
 	if damped {
@@ -204,6 +228,7 @@ func closedFormSigma(body Vehicle, y, sig []float64, chosen Rates, damped bool) 
 // of frequency rank mode, quantity kind.
 type observation struct {
 	name    string
+	figure  string // body.FigureName
 	mode    int
 	kind    int // obsFrequency, obsDamping, obsPitchPerBounce
 	value   float64
@@ -220,21 +245,23 @@ const (
 // observations lists the measured values of modes sorted by frequency.
 func observations(ms []MeasuredMode, damped bool) []observation {
 	var out []observation
-	add := func(name string, mode, kind int, value, sigma, nominal float64) {
-		o := observation{name: name, mode: mode, kind: kind, value: value, sigma: sigma}
+	add := func(label, key string, mode, kind int, value, sigma, nominal float64) {
+		o := observation{name: label + " " + key, figure: body.FigureName(label, key), mode: mode, kind: kind,
+			value: value, sigma: sigma}
 		if !(sigma > 0) {
 			o.sigma, o.nominal = nominal, true
 		}
 		out = append(out, o)
 	}
 	for i, m := range ms {
-		add(m.Label+" natural_frequency_hz", i, obsFrequency, m.NaturalFrequencyHz, m.Sigma.NaturalFrequencyHz,
+		add(m.Label, body.FigureNaturalFrequency, i, obsFrequency, m.NaturalFrequencyHz, m.Sigma.NaturalFrequencyHz,
 			nominalSigmaFrequencyFraction*m.NaturalFrequencyHz)
 		if damped {
-			add(m.Label+" damping_ratio", i, obsDamping, m.DampingRatio, m.Sigma.DampingRatio, nominalSigmaDampingRatio)
+			add(m.Label, body.FigureDampingRatio, i, obsDamping, m.DampingRatio, m.Sigma.DampingRatio,
+				nominalSigmaDampingRatio)
 		}
 		if !math.IsNaN(m.PitchPerBounceRadPerM) {
-			add(m.Label+" pitch_per_bounce_rad_per_m", i, obsPitchPerBounce, m.PitchPerBounceRadPerM,
+			add(m.Label, body.FigurePitchPerBounce, i, obsPitchPerBounce, m.PitchPerBounceRadPerM,
 				m.Sigma.PitchPerBounceRadPerM, nominalSigmaPitchPerBounce)
 		}
 	}
@@ -247,8 +274,8 @@ var ErrNotIdentifiable = errors.New("the measured values do not determine every 
 	"(singular normal equations); keep the pitch inertia fixed or measure the mode shapes")
 
 // leastSquares fits the rates (damping when measured, pitch inertia when
-// freed) to obs, from u.Vehicle, and fills u.
-func (u *Update) leastSquares(obs []observation, freeJ bool) error {
+// freed) to obs, correlated by corr, from u.Vehicle, and fills u.
+func (u *Update) leastSquares(obs []observation, freeJ bool, corr *body.Correlation) error {
 	start := u.Vehicle
 	// Parameters are logs of the values over their starting values; a
 	// damper that starts at zero starts instead at a small fraction of the
@@ -330,10 +357,18 @@ func (u *Update) leastSquares(obs []observation, freeJ bool) error {
 	if !chol.Factorize(&jtj) {
 		return ErrNotIdentifiable
 	}
-	var cov mat.SymDense
-	if err := chol.InverseTo(&cov); err != nil {
+	var binv mat.SymDense
+	if err := chol.InverseTo(&binv); err != nil {
 		return ErrNotIdentifiable
 	}
+	// The sandwich B^-1 (J^T R J) B^-1, B = J^T J: the fit weights each
+	// value by its own sigma alone; R carries the correlation into the
+	// covariance of the estimate.
+	var jr, meat, left, cov mat.Dense
+	jr.Mul(lm.J.T(), correlationOf(obs, corr))
+	meat.Mul(&jr, lm.J)
+	left.Mul(&binv, &meat)
+	cov.Mul(&left, &binv)
 	par := rateVector(v.RatesOf(), u.Damped)
 	if freeJ {
 		par = append(par, v.PitchInertiaKgm2)
@@ -361,6 +396,22 @@ func (u *Update) leastSquares(obs []observation, freeJ bool) error {
 	}
 	u.Residual = fr
 	return nil
+}
+
+// correlationOf returns the correlation matrix of the values obs (corr; a
+// value with a nominal sigma correlates with nothing).
+func correlationOf(obs []observation, corr *body.Correlation) *mat.SymDense {
+	n := len(obs)
+	r := mat.NewSymDense(n, nil)
+	for i := range obs {
+		for j := i; j < n; j++ {
+			if i != j && (obs[i].nominal || obs[j].nominal) {
+				continue
+			}
+			r.SetSym(i, j, corr.Coefficient(obs[i].figure, obs[j].figure))
+		}
+	}
+	return r
 }
 
 // JSON returns the contract's form of the update.

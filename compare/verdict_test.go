@@ -76,7 +76,7 @@ func assessed(t *testing.T, frontScale float64, sig ModeSigma, edit func([]Measu
 	if edit != nil {
 		edit(meas)
 	}
-	a, err := Assess(meas, setup)
+	a, err := Assess(meas, nil, setup)
 	if err != nil {
 		t.Fatal(err)
 	}

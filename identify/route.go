@@ -77,10 +77,13 @@ type QuickEstimate struct {
 // Identified is what either route found in one log: the two body modes and
 // everything a result, a summary and a report need to say how.
 type Identified struct {
-	Test    string
-	Modes   []body.Mode // bounce and pitch, sorted by natural frequency
-	Method  string      // one sentence naming the route's estimator
-	Summary ingest.Summary
+	Test  string
+	Modes []body.Mode // bounce and pitch, sorted by natural frequency
+	// Correlation relates the modes' figures (drop route; nil from the rig
+	// route, whose figures are taken as independent).
+	Correlation *body.Correlation
+	Method      string // one sentence naming the route's estimator
+	Summary     ingest.Summary
 	// Choices say what was chosen and why; Warnings what the user should
 	// know, the reasons of flagged modes among them (FlagWarnings).
 	Choices, Warnings []string
@@ -213,7 +216,7 @@ func identifyDrop(ctx context.Context, r *ingest.Reader, setup *ingest.Setup, op
 		return id, err
 	}
 	id.Drop = &DropDetail{Log: log, Fit: fit}
-	id.Modes = fit.Modes
+	id.Modes, id.Correlation = fit.Modes, fit.Correlation
 	id.Choices = append(id.Choices, fit.Reasons...)
 	id.FitResidual, id.ModeShapeMAC = fit.NormalisedResidual, fit.MAC
 	for _, q := range fit.LogDecrement {

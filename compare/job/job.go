@@ -346,6 +346,7 @@ func (o *Options) result(p *plan, path string, info ingest.Info, id *identify.Id
 	for _, m := range id.Modes {
 		res.Modes = append(res.Modes, compare.MeasuredJSON(m, pos, id.Method))
 	}
+	res.ModeCorrelation = compare.CorrelationJSON(id.Correlation)
 	return res
 }
 

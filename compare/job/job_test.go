@@ -111,7 +111,8 @@ func TestCancelledRunStops(t *testing.T) {
 // TestOneSetupBothTests: the car's rig setup serves its drop log with
 // Test "drop" (the inputs are ignored); without it the drop log is refused
 // with advice that names --test drop. On the drop log of a 2 % noise
-// simulation, both modes lie within 3 stated sd of the model (the truth).
+// simulation, both modes lie within 3 stated sd of the model (the truth),
+// and the result relates the modes' six figures (mode_correlation).
 func TestOneSetupBothTests(t *testing.T) {
 	dir := t.TempDir()
 	drop := writeLog(t, dir, "drop", 0)
@@ -132,6 +133,9 @@ func TestOneSetupBothTests(t *testing.T) {
 		if m.Label != p.Label || math.Abs(m.NaturalFrequencyHz-p.NaturalFrequencyHz) > 3*m.Uncertainty.NaturalFrequencyHz {
 			t.Errorf("%s: %.4f ± %.4f Hz, model %.4f Hz", m.Label, m.NaturalFrequencyHz, m.Uncertainty.NaturalFrequencyHz, p.NaturalFrequencyHz)
 		}
+	}
+	if c, err := res.ModeCorrelation.Correlation(); err != nil || c == nil || len(c.Figures) != 6 {
+		t.Errorf("mode_correlation %+v (%v), want the six figures of the two modes", res.ModeCorrelation, err)
 	}
 	// A rig test asked of a setup without inputs is an option error.
 	noInputs := filepath.Join(dir, "noinputs.toml")

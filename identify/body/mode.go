@@ -41,7 +41,8 @@ type Mode struct {
 // SD holds one standard deviation of each of a Mode's values, in the same
 // units, by the delta method from the covariance of the fitted parameters
 // (the rig route adds the expected resolution bias in quadrature, see
-// package identify/modal).
+// package identify/modal; the drop route reads the pitch per bounce of a
+// bounce-like shape from the profile likelihood, see identify/decay).
 type SD struct {
 	NaturalFrequencyHz    float64
 	DampedFrequencyHz     float64

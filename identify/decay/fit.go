@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"slices"
 	"strings"
 
 	"gonum.org/v1/gonum/floats"
@@ -132,6 +133,9 @@ type Result struct {
 	// Modes are bounce and pitch, sorted by natural frequency and labelled
 	// (body.SortAndLabel); RankOneRatio is 0 (no measured input).
 	Modes []body.Mode
+	// Correlation relates the modes' natural frequencies, damping ratios
+	// and pitch per bounce (delta method on the fit's covariance).
+	Correlation *body.Correlation
 	// MAC is the modal assurance criterion of the two modes' sensor shapes.
 	MAC float64
 	// NormalisedResidual is sqrt(sum of squared residuals / sum of squared
@@ -173,14 +177,17 @@ type Result struct {
 //     two pole groups stable at the most orders start the refinement.
 //  5. Amplitudes and offsets by linear least squares, then a
 //     Levenberg-Marquardt refinement of poles, amplitudes and offsets
-//     against every fitted sample (expModel).
+//     against every fitted sample (expModel); then a refit with each
+//     channel weighted by the inverse of its residual sd (reweighted).
 //  6. Shapes, heave and pitch by kinematics, labels, MAC; standard
 //     deviations from kappa s^2 (J^T J)^-1 by the delta method, where s^2
-//     is the residual variance and kappa = 1/(q sum h^2) accounts for the
-//     filtered noise: for white sensor noise through taps h and keeping one
-//     sample in q, the noise density at the body modes (where |H| = 1) is
-//     kappa times that of white noise of the same variance, so the fitted
-//     samples count as N/kappa independent ones.
+//     is the weighted residual variance and kappa = 1/(q sum h^2) accounts
+//     for the filtered noise: for white sensor noise through taps h and
+//     keeping one sample in q, the noise density at the body modes (where
+//     |H| = 1) is kappa times that of white noise of the same variance, so
+//     the fitted samples count as N/kappa independent ones. The pitch per
+//     bounce of a bounce-like shape takes its sd from the profile
+//     likelihood (profilePPBSD); Result.Correlation relates the figures.
 //  7. The log decrement per channel as a quick, one-mode estimate.
 //
 // Data problems return errors (*NoEventError, *ConstantChannelError,
@@ -277,6 +284,33 @@ func Fit(rateHz float64, channels [][]float64, posM []float64, opt Options) (*Re
 	}
 	p, rss, jac := pick.params, pick.rss, pick.jac
 	res.Iterations = pick.iterations
+	cov, s2, err := m.covariance(jac, rss, dec.kappa)
+	if err != nil {
+		return nil, err
+	}
+	// Weighted refit; kept unless its poles leave the band or the data no
+	// longer determine its parameters.
+	if w := m.channelWeights(p); w != nil {
+		mw := m
+		mw.weight = w
+		pw, rssW, jacW, its := reweighted(mw, p, opt.BandLowHz, opt.BandHighHz)
+		res.Iterations += its
+		sds := make([]string, len(w))
+		for c, wc := range w {
+			sds[c] = fmt.Sprintf("%.3g", 1/wc)
+		}
+		if covW, s2W, errW := mw.covariance(jacW, rssW, dec.kappa); errW == nil {
+			m, p, rss, cov, s2 = mw, pw, rssW, covW, s2W
+			res.Reasons = append(res.Reasons, fmt.Sprintf(
+				"each channel weighted by the inverse of its residual sd (%s, in the log's unit): "+
+					"sensors of unequal noise count by their own noise, and the standard deviations follow",
+				strings.Join(sds, ", ")))
+		} else {
+			res.Reasons = append(res.Reasons, fmt.Sprintf(
+				"the refit weighted by the channels' residual sd (%s) left parameters undetermined (%v); the "+
+					"unweighted fit stands", strings.Join(sds, ", "), errW))
+		}
+	}
 	res.Order = max(pick.groups[0].lowestOrder(), pick.groups[1].lowestOrder())
 	res.Reasons = append(res.Reasons, fmt.Sprintf(
 		"ERA orders 2-%d (Hankel %d x %d, lag step %.3g s): %d pole groups in the band, %d of them stable; "+
@@ -289,12 +323,9 @@ func Fit(rateHz float64, channels [][]float64, posM []float64, opt Options) (*Re
 			"%d stable pole groups in %.3g-%.3g Hz; kept the pair that fits the decay best", pick.nStable,
 			opt.BandLowHz, opt.BandHighHz)})
 	}
-	cov, err := m.covariance(jac, rss, dec.kappa)
-	if err != nil {
-		return nil, err
-	}
-	res.Modes = modesWithSD(m, p, cov, posM)
+	res.Modes, res.Correlation = modesWithSD(m, p, cov, posM, rss, s2)
 	res.MAC = body.MAC(res.Modes[0].Shape, res.Modes[1].Shape)
+	m = m.unweighted()
 	fillCurves(res, m, p, dec, ev)
 	res.LogDecrement = make([]LogDecrement, len(channels))
 	for c := range channels {
@@ -400,12 +431,20 @@ func (d decimated) shortError(event, need int) error {
 // modesWithSD builds the modes from the refined parameters and their
 // covariance (delta method), with heave and pitch by the sensors'
 // kinematics (body.Kinematics), sorts them by frequency and labels them
-// (body.SortAndLabel).
-func modesWithSD(m expModel, p []float64, cov *mat.SymDense, posM []float64) []body.Mode {
+// (body.SortAndLabel). The pitch per bounce of a shape whose node lies
+// beyond the sensors' reach takes its sd from the profile likelihood
+// (profilePPBSD; rss and s2 as there), its node's sd following. It also
+// returns the correlation of the modes' natural frequencies, damping
+// ratios and pitch per bounce, by the delta method.
+func modesWithSD(m expModel, p []float64, cov *mat.SymDense, posM []float64, rss, s2 float64) ([]body.Mode,
+	*body.Correlation) {
 	nch := m.nch()
 	kin := body.NewKinematics(posM)
 	np := m.params()
 	ms := make([]body.Mode, m.modes)
+	// grads[r] holds the gradients of mode r's natural frequency, damping
+	// ratio and pitch per bounce.
+	grads := make([][3][]float64, m.modes)
 	for r := range ms {
 		lam := m.pole(p, r)
 		w := cmplx.Abs(lam)
@@ -422,33 +461,29 @@ func modesWithSD(m expModel, p []float64, cov *mat.SymDense, posM []float64) []b
 		for c := range psi {
 			md.Shape[c] = psi[c] / z
 		}
-		ppb := real(th / z)
+		ppb, gp := pitchPerBounce(m, kin, p, r)
 		md.PitchPerBounceRadPerM = ppb
 		md.NodeM = kin.NodeM(ppb)
-		// Gradients with respect to the parameter vector. An amplitude
-		// psi_c = (a - i b)/2 of the parameters a, b enters a holomorphic
-		// function f of the amplitudes with d Re f/da = Re f'/2,
-		// d Re f/db = Im f'/2, d Im f/da = Im f'/2, d Im f/db = -Re f'/2,
-		// f' = df/dpsi_c.
+		// Gradients with respect to the parameter vector (for the
+		// amplitudes' part see pitchPerBounce; besides, d Im f/da = Im f'/2
+		// and d Im f/db = -Re f'/2).
 		gf := make([]float64, np)
 		gz := make([]float64, np)
 		gd := make([]float64, np)
-		gp := make([]float64, np)
 		gf[2*r], gf[2*r+1] = sig/(w*2*math.Pi), om/(w*2*math.Pi)
 		gz[2*r], gz[2*r+1] = om*om/(w*w*w), -sig*om/(w*w*w)
 		gd[2*r+1] = 1 / (2 * math.Pi)
-		for c := range psi {
-			// d(theta/z)/d psi_c.
-			dr := (complex(kin.ThetaWeights[c], 0)*z - th*complex(kin.ZWeights[c], 0)) / (z * z)
-			i := m.ampIndex(r, c)
-			gp[i], gp[i+1] = real(dr)/2, imag(dr)/2
+		grads[r] = [3][]float64{gf, gz, gp}
+		sdPPB := quadSD(gp, cov)
+		if math.Abs(kin.ReachM*ppb) <= 1 {
+			sdPPB = profilePPBSD(m, kin, p, r, rss, s2, ppb, sdPPB)
 		}
 		md.SD = body.SD{
 			NaturalFrequencyHz:    quadSD(gf, cov),
 			DampedFrequencyHz:     quadSD(gd, cov),
 			DampingRatio:          quadSD(gz, cov),
-			PitchPerBounceRadPerM: quadSD(gp, cov),
-			NodeM:                 quadSD(gp, cov) / (ppb * ppb),
+			PitchPerBounceRadPerM: sdPPB,
+			NodeM:                 sdPPB / (ppb * ppb),
 		}
 		gRe, gIm := make([]float64, np), make([]float64, np)
 		for k := range psi {
@@ -468,7 +503,27 @@ func modesWithSD(m expModel, p []float64, cov *mat.SymDense, posM []float64) []b
 		ms[r] = md
 	}
 	body.SortAndLabel(ms)
-	return ms
+	var names []string
+	var gs [][]float64
+	for _, md := range ms {
+		for r := range grads {
+			if m.pole(p, r) != md.Pole {
+				continue
+			}
+			for k, key := range []string{body.FigureNaturalFrequency, body.FigureDampingRatio, body.FigurePitchPerBounce} {
+				names = append(names, body.FigureName(md.Label, key))
+				gs = append(gs, grads[r][k])
+			}
+		}
+	}
+	fc := make([][]float64, len(gs))
+	for i, gi := range gs {
+		fc[i] = make([]float64, len(gs))
+		for j, gj := range gs {
+			fc[i][j] = mat.Inner(mat.NewVecDense(np, gi), cov, mat.NewVecDense(np, gj))
+		}
+	}
+	return ms, body.CorrelationOf(names, fc)
 }
 
 // quadSD returns sqrt(g^T C g).
@@ -577,6 +632,25 @@ func choosePair(m expModel, pts []StabilisationPoint, loHz, hiHz float64) (*pair
 	}
 	best.nGroups, best.nStable, best.nTried = len(groups), nStable, nTry
 	return best, nil
+}
+
+// reweighted refits the unweighted solution p with the channel weights of m
+// set (feasible generalised least squares: each channel weighted by the
+// inverse of its residual sd, so that a noisy sensor counts for less and
+// the covariance holds for sensors of unequal noise). It returns the
+// solution, its weighted cost and Jacobian and the iterations taken. A
+// refit whose poles leave the band or stop being physical (physicalPair) is
+// not taken: p is kept, with its weighted cost and Jacobian.
+func reweighted(m expModel, p []float64, loHz, hiHz float64) ([]float64, float64, *mat.Dense, int) {
+	q := slices.Clone(p)
+	lm, _ := lsq.Minimize(m.evaluate, m.rows(), q, lsq.Settings{})
+	if physicalPair(m, q, loHz, hiHz) {
+		return q, lm.Cost, lm.J, lm.Iterations
+	}
+	res := make([]float64, m.rows())
+	jac := mat.NewDense(m.rows(), m.params(), nil)
+	m.evaluate(res, jac, p)
+	return p, floats.Dot(res, res), jac, lm.Iterations
 }
 
 // samePoleTol: two refined poles closer than this fraction of their modulus

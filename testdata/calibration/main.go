@@ -14,7 +14,10 @@
 // condition: bias, sd and worst of the errors, the share within 2 stated
 // sd, the RMS of error/sd, flagged and missing estimates), judges the
 // acceptance figures of the honest-answers issue (PASS or FAIL), and writes
-// every case to a CSV file with -csv.
+// every case to a CSV file with -csv. With -bound it prints instead the
+// Cramer-Rao bound of the natural frequencies and damping ratios of the
+// selected cars' 5-minute rig logs (bound.go), the sd no unbiased
+// estimator can beat on such a log.
 //
 // Seeds are 10000 car + 100 condition + s (car and condition counted from
 // 1 in the full lists, s from -first-seed), so one case can be rebuilt with
@@ -58,6 +61,8 @@ func run() error {
 	longRateHz := flag.Float64("long-rate", 128, "sample rate of the hour-long rig logs in Hz")
 	csvPath := flag.String("csv", "", "write every case's figures to this CSV file")
 	list := flag.Bool("list", false, "list the cars with their true modes, and the conditions, then stop")
+	bound := flag.Bool("bound", false, "print the Cramer-Rao bound of the natural frequencies and damping ratios "+
+		"of the selected cars under the selected 5-minute rig conditions, then stop")
 	flag.Parse()
 	if flag.NArg() > 0 {
 		return fmt.Errorf("unexpected argument %q (options only; -h lists them)", flag.Arg(0))
@@ -81,6 +86,9 @@ func run() error {
 		return fmt.Errorf("-conds: %w", err)
 	}
 
+	if *bound {
+		return printBounds(os.Stdout, selCars, selConds, allConds, *firstSeed)
+	}
 	dir, err := os.MkdirTemp("", "ridemodes-calibration-")
 	if err != nil {
 		return err
@@ -112,7 +120,6 @@ func run() error {
 func makeJobs(dir string, selCars []car, selConds, allConds []condition, firstSeed, seeds int) ([]caseJob, error) {
 	var jobs []caseJob
 	for _, c := range selCars {
-		ci := slices.IndexFunc(cars, func(x car) bool { return x.name == c.name }) + 1
 		setups := map[bool]string{}
 		for endPair, keep := range map[bool][]int{false: c.allSensors(), true: c.endSensors()} {
 			p := fmt.Sprintf("%s/%s-%d.toml", dir, c.name, len(keep))
@@ -122,14 +129,22 @@ func makeJobs(dir string, selCars []car, selConds, allConds []condition, firstSe
 			setups[endPair] = p
 		}
 		for _, cond := range selConds {
-			ki := slices.IndexFunc(allConds, func(x condition) bool { return x.name == cond.name }) + 1
 			for s := firstSeed; s < firstSeed+seeds; s++ {
-				jobs = append(jobs, caseJob{car: c, cond: cond, seed: uint64(10000*ci + 100*ki + s),
+				jobs = append(jobs, caseJob{car: c, cond: cond, seed: seedOf(c, cond, allConds, s),
 					setupPath: setups[cond.endPair]})
 			}
 		}
 	}
 	return jobs, nil
+}
+
+// seedOf returns the seed of car c under cond for the sweep's seed number s:
+// 10000 car + 100 condition + s, car and condition counted from 1 in the
+// full lists.
+func seedOf(c car, cond condition, allConds []condition, s int) uint64 {
+	ci := slices.IndexFunc(cars, func(x car) bool { return x.name == c.name }) + 1
+	ki := slices.IndexFunc(allConds, func(x condition) bool { return x.name == cond.name }) + 1
+	return uint64(10000*ci + 100*ki + s)
 }
 
 // runAll runs the jobs on workers goroutines, the longest logs first, and

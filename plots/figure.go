@@ -250,7 +250,14 @@ var plainTicks = plot.TickerFunc(func(min, max float64) []plot.Tick {
 func setLog(a *plot.Axis) {
 	a.Scale = plot.LogScale{}
 	a.Tick.Marker = plot.TickerFunc(func(min, max float64) []plot.Tick {
-		ticks := plot.LogTicks{Prec: -1}.Ticks(min, max)
+		// gonum's LogTicks starts at 10^int(log10 min), which truncates
+		// toward zero: below 1 it would start at 1 and leave the lower
+		// decades bare. Give it a start just under min's decade.
+		start := min
+		if min < 1 {
+			start = math.Pow10(int(math.Floor(math.Log10(min)))) * (1 - 1e-9)
+		}
+		ticks := plot.LogTicks{Prec: -1}.Ticks(start, max)
 		labelled := 0
 		for _, t := range ticks {
 			if t.Label != "" && t.Value >= min && t.Value <= max {

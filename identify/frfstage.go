@@ -75,7 +75,7 @@ func WindowNamed(name string) (w spectral.Window, note string, err error) {
 // within 2 sd, worst 3.0 sd; natural frequency RMS z 0.95 and 1.03).
 const DefaultFitResolutionBias = 0.003
 
-// fitMinAverages is the least effective number of averages the resolution
+// FitMinAverages is the least effective number of averages the resolution
 // choice accepts for the modal fit: fewer than the spectral package's
 // default of 20. The fit weights every bin by its own error band, so fewer
 // averages cost precision, which the reported standard deviations carry;
@@ -83,7 +83,7 @@ const DefaultFitResolutionBias = 0.003
 // reports. Measured on the 20 seeded logs of TestRigRouteAccuracy: with 20,
 // 12 and 8 averages, 86.7 %, 91.7 % and 95.0 % of the errors lay within two
 // reported standard deviations, and the damping bias fell.
-const fitMinAverages = 8
+const FitMinAverages = 8
 
 // fitDampingErrorScale is c in the nominal relative random error of a
 // fitted damping ratio, c/sqrt(Br T) (Br the half-power bandwidth, T the
@@ -91,7 +91,7 @@ const fitMinAverages = 8
 // variance (spectral.ChoiceOptions.DampingErrorScale). Measured on seeded
 // simulated rig logs with 5 % noise (40 of 5 minutes, 24 of an hour): the
 // delta-method sd of zeta/zeta times sqrt(Br T) had means 0.02-0.10 over the
-// candidates with at least fitMinAverages averages, 0.06 for heavily damped
+// candidates with at least FitMinAverages averages, 0.06 for heavily damped
 // modes; quieter logs have smaller random errors, for which this errs on the
 // coarse side, and the fit states the remaining resolution bias in its sd.
 const fitDampingErrorScale = 0.05
@@ -260,7 +260,7 @@ func (s *FRFStage) start(fsHz float64) error {
 		return err
 	}
 	s.fsHz = fsHz
-	s.q = spectral.DecimationFactor(fsHz, math.Min(spectraSpan*s.opt.BandHighHz, 0.4*fsHz))
+	s.q = DecimationFactor(fsHz, s.opt.BandHighHz)
 	outHz := fsHz / float64(s.q)
 	if s.opt.SegmentLen > 0 {
 		acc, err := spectral.NewAccumulator(spectral.Config{FsHz: outHz, SegmentLen: s.opt.SegmentLen,
@@ -285,6 +285,14 @@ func (s *FRFStage) start(fsHz float64) error {
 	}
 	s.view = make([][]float64, len(s.names))
 	return nil
+}
+
+// DecimationFactor returns the factor q by which an FRF stage decimates a
+// log sampled at fsHz for an analysis band ending at bandHighHz: it keeps
+// spectraSpan times the band's upper edge (at most 0.4 fsHz) in the
+// decimator's passband, so the spectra come at fsHz/q.
+func DecimationFactor(fsHz, bandHighHz float64) int {
+	return spectral.DecimationFactor(fsHz, math.Min(spectraSpan*bandHighHz, 0.4*fsHz))
 }
 
 // Consume takes one block of the stream (ingest.Reader.Stream's callback).
@@ -399,7 +407,7 @@ func (s *FRFStage) Result(sampleRateHz float64) (*FRFResult, error) {
 	}
 	if bank != nil {
 		r.Choice, r.Spectra, err = bank.Choose(inputs, outputs, spectral.ChoiceOptions{BandHz: band, MaxBias: s.opt.MaxResolutionBias,
-			MinAverages: fitMinAverages, DampingErrorScale: fitDampingErrorScale})
+			MinAverages: FitMinAverages, DampingErrorScale: fitDampingErrorScale})
 		if err != nil {
 			return nil, err
 		}

@@ -48,13 +48,16 @@
 // sheet gives A4 pages with the verdict on the first. WriteTrendReport
 // writes a campaign's trend report the same way: index.html and a figure
 // per followed quantity, trend-QUANTITY.png (TrendFigure: values with ± 2 sd
-// bars, design values, individuals and moving-range control charts). Every
-// file is written to a temporary file in the same folder and then renamed,
+// bars, design values, individuals and moving-range control charts).
+// WritePlanReport writes a test plan's page, plan.html, and its figure,
+// plan-curve.png (PlanFigure: predicted over wanted sd against the record
+// length or the number of drops); WritePlan prints the plan for a terminal.
+// Every file is written to a temporary file in the same folder and then renamed,
 // so a failure leaves nothing behind.
 //
 // Place in the flow ingest -> identify -> compare -> plots -> cmd: the plots
 // layer. It may import ingest (the atomic file write, sensors), identify
 // (the route data behind the figures), compare and compare/job (the
 // outcome of one analysed log), compare/trend and compare/store (a
-// campaign's runs), never cmd.
+// campaign's runs), compare/plan (a test plan), never cmd.
 package plots

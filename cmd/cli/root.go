@@ -107,7 +107,7 @@ Start with "ridemodes demo" for the whole job on an invented example car, or
 	root.SetFlagErrorFunc(func(cmd *cobra.Command, err error) error {
 		return usageError{fmt.Errorf("%w (see %s --help)", err, cmd.CommandPath())}
 	})
-	root.AddCommand(newModelCmd(), newSimulateCmd(), newSpectraCmd(), newAnalyzeCmd(), newCompareCmd(), newDemoCmd(), newBatchCmd(), newHistoryCmd())
+	root.AddCommand(newModelCmd(), newSimulateCmd(), newSpectraCmd(), newAnalyzeCmd(), newCompareCmd(), newDemoCmd(), newBatchCmd(), newHistoryCmd(), newPlanCmd())
 	return root
 }
 

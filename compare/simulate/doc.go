@@ -18,7 +18,10 @@
 //     propagated in two exact parts (see Drop).
 //
 // Sensor noise is white and Gaussian with a standard deviation that is a
-// fraction of each channel's clean RMS (rig) or peak absolute value (drop).
+// fraction of each channel's clean RMS (rig) or peak absolute value (drop),
+// or an absolute one in m/s^2, the same on every channel
+// (Options.NoiseSDMPerS2: a sensor's noise floor, with which a higher drive
+// or drop gives a cleaner log).
 // Every random number comes from one PCG stream seeded by Options.Seed, so a
 // log is reproducible byte for byte.
 //

@@ -42,6 +42,10 @@ type Options struct {
 	RateHz        float64
 	Seed          uint64
 	NoiseFraction float64 // noise standard deviation / channel RMS (rig) or peak (drop)
+	// NoiseSDMPerS2 is an absolute noise standard deviation in m/s^2, the
+	// same on every channel (a sensor's noise floor at RateHz), used
+	// instead of NoiseFraction; give one or the other.
+	NoiseSDMPerS2 float64
 	OffsetMPerS2  float64 // DC offset added to every channel
 	Units         string  // UnitsSI, UnitsG or UnitsMixed
 
@@ -114,6 +118,10 @@ func (o *Options) check(rig bool) error {
 		return bad("--duration %g s at --rate %g Hz is over 1e9 samples; log shorter or slower", o.DurationS, o.RateHz)
 	case !(o.NoiseFraction >= 0) || o.NoiseFraction > 1:
 		return bad("--noise is a fraction from 0 to 1 of each channel's RMS (rig) or peak (drop), e.g. 0.05 for 5 %% (got %g)", o.NoiseFraction)
+	case !(o.NoiseSDMPerS2 >= 0) || math.IsInf(o.NoiseSDMPerS2, 0):
+		return bad("the noise standard deviation must be zero or positive and finite (got %g m/s^2)", o.NoiseSDMPerS2)
+	case o.NoiseSDMPerS2 > 0 && o.NoiseFraction > 0:
+		return bad("give the noise as a fraction of each channel's level (--noise) or as an absolute standard deviation, not both")
 	case math.IsNaN(o.OffsetMPerS2) || math.IsInf(o.OffsetMPerS2, 0):
 		return bad("--offset takes a finite number in m/s^2")
 	case o.Units != UnitsSI && o.Units != UnitsG && o.Units != UnitsMixed:
@@ -330,13 +338,16 @@ func peak(x []float64) float64 {
 	return p
 }
 
-// finish adds noise (sized by level of the clean channel) and the offset to
+// finish adds noise (sized by level of the clean channel, or absolute) and the offset to
 // every channel, in column order, and assigns the units.
 func finish(log *Log, o Options, rng *rand.Rand, level func([]float64) float64) {
 	for i := range log.Columns {
 		c := &log.Columns[i]
 		c.Unit = unitFor(o.Units, i)
 		sd := o.NoiseFraction * level(c.Data)
+		if o.NoiseSDMPerS2 > 0 {
+			sd = o.NoiseSDMPerS2
+		}
 		for j := range c.Data {
 			if sd > 0 {
 				c.Data[j] += sd * rng.NormFloat64()

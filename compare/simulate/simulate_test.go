@@ -413,3 +413,30 @@ func TestRefusals(t *testing.T) {
 		t.Errorf("noise 5: %v", err)
 	}
 }
+
+func TestAbsoluteNoise(t *testing.T) {
+	// An absolute noise sd is the same on every channel, whatever its level:
+	// before the release a drop log is the noise alone, so its sd there is
+	// the one asked, within the sampling spread of 400 draws per channel
+	// (about 3.5 %, so 4 sd is 14 %).
+	o := Defaults("drop")
+	o.NoiseSDMPerS2, o.PreTriggerS = 0.07, 2
+	log, err := Drop(testCar, testSensors, o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := int(o.PreTriggerS * o.RateHz)
+	for _, c := range log.Columns {
+		if sd := rms(c.Data[:n]); math.Abs(sd/0.07-1) > 0.14 {
+			t.Errorf("%s: noise sd %.4f m/s^2 before the release, want 0.07", c.Name, sd)
+		}
+	}
+	o.NoiseFraction = 0.02
+	if _, err := Drop(testCar, testSensors, o); err == nil {
+		t.Error("noise given both ways: no error")
+	}
+	o.NoiseFraction, o.NoiseSDMPerS2 = 0, -1
+	if _, err := Drop(testCar, testSensors, o); err == nil {
+		t.Error("negative noise sd: no error")
+	}
+}

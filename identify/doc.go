@@ -6,6 +6,9 @@
 //     resolution, which for the modal fit weighs the resolution bias against
 //     the random error of the record at hand (its doc comment fixes the
 //     scaling and FRF conventions);
+//   - lpm: the local polynomial FRFs of a whole record (two inputs), free
+//     of leakage, with their noise from the local fits' residuals; the rig
+//     route's fit takes them when the record is long for the damping;
 //   - modal: the mode indicator, the multi-mode pole-residue fit of the FRFs
 //     with common poles, mode shapes and uncertainties (rig tests);
 //   - decay: release detection and the multi-output free-decay fit (drop
@@ -30,5 +33,5 @@
 //
 // Place in the flow ingest -> identify -> compare -> plots -> cmd: the
 // identify layer. It may import ingest and its own subpackages (spectral,
-// modal, decay, body, lsq, spool), never compare, plots or cmd.
+// modal, decay, body, lsq, spool, lpm), never compare, plots or cmd.
 package identify

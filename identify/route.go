@@ -162,9 +162,9 @@ func identifyRig(ctx context.Context, r *ingest.Reader, setup *ingest.Setup, opt
 		return nil, err
 	}
 	id := &Identified{Test: TestRig, Summary: sum}
+	set, fit, err := FitRig(frf, setup.Sensors, modal.Options{MaxOrder: opt.MaxOrder})
 	id.Choices = append(id.Choices, frf.Reasons...)
 	id.Warnings = append(id.Warnings, frf.Warnings...)
-	set, fit, err := FitRig(frf, setup.Sensors, modal.Options{MaxOrder: opt.MaxOrder})
 	if err != nil {
 		return id, err
 	}
@@ -189,8 +189,12 @@ func identifyRig(ctx context.Context, r *ingest.Reader, setup *ingest.Setup, opt
 		}
 	}
 	id.Warnings = append(id.Warnings, FlagWarnings(id.Modes)...)
+	frfs := frf.FRF.Method.String()
+	if frf.Local != nil {
+		frfs = "local polynomial two-input"
+	}
 	id.Method = fmt.Sprintf("rig: %s FRFs, common-pole LSCF fit of order %d (least-squares complex frequency-domain, a rational fraction polynomial model) refined by weighted least squares",
-		frf.FRF.Method, fit.Order)
+		frfs, fit.Order)
 	return id, nil
 }
 

@@ -33,6 +33,12 @@ type FRFSet struct {
 	// and k+l (the same for Re and Im parts); nil treats bins as independent.
 	// BinCorrelation gives it for a Welch estimate's window.
 	ErrorCorrelation []float64
+	// OutputCorrelation[o][o2][freq] is the complex correlation coefficient
+	// E[e_o conj(e_o2)] / sqrt(E|e_o|^2 E|e_o2|^2) of the errors e of H at
+	// one bin between outputs o and o2 on the same input (the same for every
+	// input), as when the inputs' own noise reaches every output; the lags
+	// follow ErrorCorrelation. nil treats the outputs' errors as independent.
+	OutputCorrelation [][][]complex128
 	// Kernel is the spectral window through which the FRFs were estimated
 	// (WindowKernel); nil when unknown, and then the fit states no
 	// resolution bias.
@@ -64,6 +70,21 @@ func (s *FRFSet) check() {
 		}
 		if s.Coherence != nil && len(s.Coherence[o]) != nf {
 			panic(fmt.Sprintf("modal: FRFSet Coherence[%d] has %d bins, want %d", o, len(s.Coherence[o]), nf))
+		}
+	}
+	if s.OutputCorrelation != nil {
+		if len(s.OutputCorrelation) != no {
+			panic(fmt.Sprintf("modal: FRFSet has %d outputs in H and %d in OutputCorrelation", no, len(s.OutputCorrelation)))
+		}
+		for o, row := range s.OutputCorrelation {
+			if len(row) != no {
+				panic(fmt.Sprintf("modal: FRFSet OutputCorrelation[%d] has %d outputs, want %d", o, len(row), no))
+			}
+			for o2, c := range row {
+				if len(c) != nf {
+					panic(fmt.Sprintf("modal: FRFSet OutputCorrelation[%d][%d] has %d bins, want %d", o, o2, len(c), nf))
+				}
+			}
 		}
 	}
 	for k := 1; k < nf; k++ {

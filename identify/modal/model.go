@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -148,52 +149,67 @@ func (pr poleResidue) linearResidues(theta []float64) error {
 }
 
 // covariance returns the covariance of theta from the whitened Jacobian J
-// at the optimum: the sandwich B^-1 M B^-1 with B = J^T J and M = B plus the
-// cross terms of bins whose errors correlate (set.ErrorCorrelation), times
-// max(1, chi^2/dof).
+// at the optimum: the sandwich B^-1 M B^-1 with B = J^T J and M = J^T C J,
+// C the correlation of the whitened residuals: between bins whose errors
+// correlate (set.ErrorCorrelation) and between outputs on the same input
+// (set.OutputCorrelation, at every lag times the bins' correlation), times
+// max(1, chi^2/dof). M is built as J^T W with W = C J, row by row: each
+// residual row of W is its correlated rows of J weighted by their
+// correlation.
 func (pr poleResidue) covariance(J *mat.Dense, cost float64) (*mat.SymDense, float64, error) {
 	np, nr := pr.params(), pr.rows()
 	var B mat.SymDense
 	B.SymOuterK(1, J.T())
-	meat := mat.NewDense(np, np, nil)
-	meat.Copy(&B)
-	rho := pr.b.set.ErrorCorrelation
+	set := pr.b.set
+	rho := set.ErrorCorrelation
+	nb, npair := len(pr.b.bins), pr.b.pairs
+	row := func(p, n, c int) []float64 { return J.RawRowView(2*(p*nb+n) + c) }
+	// S: each row of J plus its neighbours along the bins, weighted by the
+	// bins' correlation.
+	S := mat.NewDense(nr, np, nil)
+	S.Copy(J)
 	if len(rho) > 0 {
-		nb := len(pr.b.bins)
-		shift := mat.NewDense(nr, np, nil)
-		var cross mat.Dense
-		for l := 1; l <= len(rho); l++ {
-			shift.Zero()
-			found := false
-			for n := range nb {
-				// The bin l grid steps above bin n, if it is in the band.
-				m := n + 1
-				for m < nb && pr.b.bins[m]-pr.b.bins[n] < l {
-					m++
-				}
-				if m >= nb || pr.b.bins[m]-pr.b.bins[n] != l {
-					continue
-				}
-				found = true
-				for p := range pr.b.pairs {
+		for n := range nb {
+			for m := n + 1; m < nb && pr.b.bins[m]-pr.b.bins[n] <= len(rho); m++ {
+				r := rho[pr.b.bins[m]-pr.b.bins[n]-1]
+				for p := range npair {
 					for c := range 2 {
-						src := 2*(p*nb+m) + c
-						dst := 2*(p*nb+n) + c
-						shift.SetRow(dst, J.RawRowView(src))
+						floats.AddScaled(S.RawRowView(2*(p*nb+n)+c), r, row(p, m, c))
+						floats.AddScaled(S.RawRowView(2*(p*nb+m)+c), r, row(p, n, c))
 					}
-				}
-			}
-			if !found {
-				continue
-			}
-			cross.Mul(J.T(), shift)
-			for i := range np {
-				for j := range np {
-					meat.Set(i, j, meat.At(i, j)+rho[l-1]*(cross.At(i, j)+cross.At(j, i)))
 				}
 			}
 		}
 	}
+	W := S
+	if oc := set.OutputCorrelation; oc != nil {
+		ni := set.inputs()
+		W = mat.NewDense(nr, np, nil)
+		W.Copy(S)
+		srow := func(p, n, c int) []float64 { return S.RawRowView(2*(p*nb+n) + c) }
+		for o := range set.outputs() {
+			for o2 := range set.outputs() {
+				if o2 == o {
+					continue
+				}
+				for n, k := range pr.b.bins {
+					c := oc[o][o2][k]
+					for i := range ni {
+						p, p2 := o*ni+i, o2*ni+i
+						re, im := W.RawRowView(2*(p*nb+n)), W.RawRowView(2*(p*nb+n)+1)
+						// Corr(Re e_o, Re e_o2) = Corr(Im, Im) = Re c,
+						// Corr(Re e_o, Im e_o2) = -Im c, Corr(Im e_o, Re e_o2) = Im c.
+						floats.AddScaled(re, real(c), srow(p2, n, 0))
+						floats.AddScaled(re, -imag(c), srow(p2, n, 1))
+						floats.AddScaled(im, imag(c), srow(p2, n, 0))
+						floats.AddScaled(im, real(c), srow(p2, n, 1))
+					}
+				}
+			}
+		}
+	}
+	var meat mat.Dense
+	meat.Mul(J.T(), W)
 	var chol mat.Cholesky
 	if !chol.Factorize(&B) {
 		return nil, 0, fmt.Errorf("the fit's normal matrix is singular: the data do not determine every parameter; " +
@@ -204,7 +220,7 @@ func (pr poleResidue) covariance(J *mat.Dense, cost float64) (*mat.SymDense, flo
 		return nil, 0, fmt.Errorf("inverting the fit's normal matrix: %w", err)
 	}
 	var t, cov mat.Dense
-	t.Mul(&binv, meat)
+	t.Mul(&binv, &meat)
 	cov.Mul(&t, &binv)
 	dof := float64(nr - np)
 	chi2 := cost / dof

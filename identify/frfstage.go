@@ -494,6 +494,20 @@ func (s *FRFStage) Result(sampleRateHz float64) (*FRFResult, error) {
 // 0.03 % against 0.15 %, no damping bias against +0.0005 to +0.0016).
 const minLocalBinsPerBr = 30
 
+// maxLocalBinsPerBr is the most bins per half-power bandwidth at which
+// EstimatorAuto takes the local polynomial FRFs: above it (records of some
+// 15-20 minutes and longer at the body modes' damping) Welch's long
+// segments, chosen from the damping and the record, leave no bias worth the
+// cost. Measured on the calibration sweep's hour-long logs (Br T about
+// 1000-3000 bins, 240 logs): the local polynomial FRFs cut the frequencies'
+// RMS errors by 0-25 %, but 12 of 2880 estimates lay beyond 3 stated sd
+// (7.8 expected of a calibrated estimator) against 3 with Welch, and the
+// whole run of an hour-long 512 Hz log took 0.38 s against 0.25 s. The
+// value between the 5-minute logs' 100-400 bins, where the local
+// polynomial wins clearly, and the hour-long logs' 1000 and more is our
+// choice; records in between were not measured.
+const maxLocalBinsPerBr = 600
+
 // localWindowsPerBr sets the local polynomial window from the record: 2R+1
 // bins about a 32nd of the half-power bandwidth's Br T bins, but not fewer
 // than 2 lpm.DefaultHalfWidth + 1 = 15. A wider window spends fewer of its
@@ -519,8 +533,9 @@ const maxLocalBins = 1024
 
 // useLocalPolynomial reports whether the modal fit takes the local
 // polynomial FRFs of the whole record, and why: as asked, or
-// (EstimatorAuto) when the record holds at least minLocalBinsPerBr bins per
-// half-power bandwidth of the resolution choice's quick damping estimate.
+// (EstimatorAuto) when the record holds from minLocalBinsPerBr to
+// maxLocalBinsPerBr bins per half-power bandwidth of the resolution choice's
+// quick damping estimate.
 // Either needs the spooled record and two pans the Welch estimate could
 // tell apart over the whole band.
 func (s *FRFStage) useLocalPolynomial(r *FRFResult) (string, bool) {
@@ -538,8 +553,8 @@ func (s *FRFStage) useLocalPolynomial(r *FRFResult) (string, bool) {
 			return "", false
 		}
 	}
-	if bins := r.Choice.HalfPowerHz * r.Choice.RecordS; bins >= minLocalBinsPerBr {
-		return fmt.Sprintf("%.0f bins of the record per half-power bandwidth, at least %d", bins, minLocalBinsPerBr), true
+	if bins := r.Choice.HalfPowerHz * r.Choice.RecordS; bins >= minLocalBinsPerBr && bins <= maxLocalBinsPerBr {
+		return fmt.Sprintf("%.0f bins of the record per half-power bandwidth, from %d to %d", bins, minLocalBinsPerBr, maxLocalBinsPerBr), true
 	}
 	return "", false
 }

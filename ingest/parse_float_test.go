@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"bytes"
 	"math"
 	"math/rand/v2"
 	"strconv"
@@ -158,4 +159,35 @@ func BenchmarkParseRow(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+}
+
+// BenchmarkParseChunk parses one chunk of a generated log (the writer's
+// format, 5 columns) the way a pipeline worker does: lines found in the
+// chunk's buffer, every cell converted, the time cells' decimal places
+// counted.
+func BenchmarkParseChunk(b *testing.B) {
+	data := genBytes(chunkBytes, 5)
+	r, err := NewReader(strings.NewReader(string(data)), "b.csv", -1, Options{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	body := data[bytes.Index(data, []byte(genHeader))+len(genHeader):]
+	body = body[:bytes.LastIndexByte(body, '\n')+1]
+	buf := make([]byte, len(body), chunkBytes+MaxLineBytes+2)
+	copy(buf, body)
+	j := &job{buf: buf, startLine: 4, nLines: bytes.Count(buf, nl)}
+	p := r.newRowParser()
+	c := &parsedChunk{}
+	nch := len(r.info.Channels)
+	vals := make([]float64, nch)
+	b.ReportAllocs()
+	for b.Loop() {
+		p.parseJob(j, c, nch, 1, vals)
+		if c.err != nil || c.rows != j.nLines {
+			b.Fatalf("%d rows of %d, %v", c.rows, j.nLines, c.err)
+		}
+	}
+	cells := float64(j.nLines * (nch + 1))
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/cells, "ns/cell")
+	b.SetBytes(int64(len(buf)))
 }

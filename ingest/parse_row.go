@@ -68,8 +68,7 @@ func (p *rowParser) parseRow(b []byte, vals []float64) (float64, error) {
 		if pos < n && b[pos] == '"' {
 			return p.parseQuotedRow(b, vals)
 		}
-		f, end, st := scanFloat(b, pos, sep, delim)
-		numEnd := end
+		f, end, st, places := scanFloat(b, pos, sep, delim)
 		for end < n && (b[end] == ' ' || (b[end] == '\t' && delim != '\t')) {
 			end++
 		}
@@ -78,7 +77,7 @@ func (p *rowParser) parseRow(b []byte, vals []float64) (float64, error) {
 		}
 		if s == slotTime {
 			t = f
-			p.timePlaces.add(decimalsOf(b[pos:numEnd], sep))
+			p.timePlaces.add(places)
 		} else {
 			vals[s] = f * p.scales[s]
 		}
@@ -116,13 +115,13 @@ func (p *rowParser) parseQuotedRow(b []byte, vals []float64) (float64, error) {
 		if s == slotSkip {
 			continue
 		}
-		f, st := p.parseCell(cell)
+		f, places, st := p.parseCell(cell)
 		if st != numOK || len(cell) == 0 {
 			return 0, p.cellErrText(c, cell, st)
 		}
 		if s == slotTime {
 			t = f
-			p.timePlaces.add(decimalsOf(cell, p.sep))
+			p.timePlaces.add(places)
 		} else {
 			vals[s] = f * p.scales[s]
 		}
@@ -131,14 +130,15 @@ func (p *rowParser) parseQuotedRow(b []byte, vals []float64) (float64, error) {
 }
 
 // parseCell parses a whole cell, locking the decimal separator of a ';' or
-// tab log on the first cell that shows one.
-func (p *rowParser) parseCell(cell []byte) (float64, int) {
-	f, end, st := scanFloat(cell, 0, p.sep, 0)
+// tab log on the first cell that shows one. It returns the value, its
+// decimal places (see scanFloat) and the outcome.
+func (p *rowParser) parseCell(cell []byte) (float64, int, int) {
+	f, end, st, places := scanFloat(cell, 0, p.sep, 0)
 	if st == numOtherSep && !p.sepLocked {
 		p.sep = otherSep(p.sep)
 		p.sepLocked = true
 		p.r.info.DecimalComma = p.sep == ','
-		f, end, st = scanFloat(cell, 0, p.sep, 0)
+		f, end, st, places = scanFloat(cell, 0, p.sep, 0)
 	}
 	if st == numOK && end != len(cell) {
 		st = numBad
@@ -146,7 +146,7 @@ func (p *rowParser) parseCell(cell []byte) (float64, int) {
 	if st == numOK && !p.sepLocked && bytes.IndexByte(cell, p.sep) >= 0 {
 		p.sepLocked = true
 	}
-	return f, st
+	return f, places, st
 }
 
 func otherSep(s byte) byte {

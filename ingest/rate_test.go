@@ -177,7 +177,7 @@ func TestJitterCheckKnowsStampResolution(t *testing.T) {
 	}
 }
 
-func TestDecimalsOf(t *testing.T) {
+func TestDecimalPlaces(t *testing.T) {
 	for _, c := range []struct {
 		in   string
 		sep  byte
@@ -187,8 +187,9 @@ func TestDecimalsOf(t *testing.T) {
 		{"3.9e-3", '.', 4}, {"39E-4", '.', 4}, {"1.2e3", '.', -2}, {"5e+2", '.', -2},
 		{"0,00390625", ',', 8}, {"+7,5E-1", ',', 2},
 	} {
-		if got := decimalsOf([]byte(c.in), c.sep); got != c.want {
-			t.Errorf("decimalsOf(%q) = %d, want %d", c.in, got, c.want)
+		_, end, st, got := scanFloat([]byte(c.in), 0, c.sep, 0)
+		if st != numOK || end != len(c.in) || got != c.want {
+			t.Errorf("scanFloat(%q): %d decimal places (status %d, end %d), want %d", c.in, got, st, end, c.want)
 		}
 	}
 	var pc placeCounts

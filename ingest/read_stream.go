@@ -478,8 +478,10 @@ func (s *streamer) flush() error {
 	for k := range s.data {
 		d := s.data[k][:s.n]
 		s.views[k] = d
-		s.stats[k].add(d)
-		s.quality[k].add(d, s.lines[:s.n], start, s.firstT, s.outT0)
+		q := s.quality[k]
+		sc := q.scan(d)
+		s.stats[k].add(d, sc)
+		q.add(d, s.lines[:s.n], start, s.firstT, s.outT0, sc)
 	}
 	b := Block{Start: start, TimeS: s.blkT0, SampleRateHz: s.fsOut, Data: s.views}
 	s.n = 0
@@ -617,24 +619,19 @@ func newRunningStats() runningStats {
 	return runningStats{min: math.Inf(1), max: math.Inf(-1)}
 }
 
-func (s *runningStats) add(d []float64) {
+// add takes a block d and what chanQuality.scan found in it.
+func (s *runningStats) add(d []float64, sc blockScan) {
 	if len(d) == 0 {
 		return
 	}
-	var sum float64
-	mn, mx := s.min, s.max
-	for _, v := range d {
-		sum += v
-		if v < mn {
-			mn = v
-		}
-		if v > mx {
-			mx = v
-		}
+	if sc.min < s.min {
+		s.min = sc.min
 	}
-	s.min, s.max = mn, mx
+	if sc.max > s.max {
+		s.max = sc.max
+	}
 	nb := float64(len(d))
-	mb := sum / nb
+	mb := sc.sum / nb
 	var m2 float64
 	for _, v := range d {
 		e := v - mb

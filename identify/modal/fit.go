@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"sync"
 
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
@@ -229,15 +230,19 @@ func Fit(set *FRFSet, opt Options) (*Result, error) {
 	if found < 2 {
 		return nil, &ModeCountError{Found: found, BandLowHz: lo, BandHighHz: hi, Stage: "refinement"}
 	}
+	// The resolution bias (a second fit, to smoothed FRFs) needs nothing of
+	// the covariance: the two run side by side, each as it would alone.
+	var bias [][]float64
+	var wg sync.WaitGroup
+	if set.Kernel != nil {
+		wg.Go(func() { bias = pr.resolutionBias(theta, set.Kernel) })
+	}
 	cov, chi2, err := pr.covariance(lm.J, lm.Cost)
+	wg.Wait()
 	if err != nil {
 		return nil, err
 	}
 	res.ChiSquarePerDOF = chi2
-	var bias [][]float64
-	if set.Kernel != nil {
-		bias = pr.resolutionBias(theta, set.Kernel)
-	}
 	res.Modes, res.ResolutionBias = pr.modesWithSD(theta, cov, bias)
 	res.MAC = body.MAC(res.Modes[0].Shape, res.Modes[1].Shape)
 	res.UpperResidual, res.LowerResidual = pr.residualTerms(theta)

@@ -42,6 +42,50 @@ func TestAccumulatorReproducible(t *testing.T) {
 	}
 }
 
+// TestSharedLaneExact: a single lane that shares its held segments with a
+// second goroutine (Accumulator.flush) gives the sums bit for bit of the
+// segments taken one at a time, which calling Spectra after every segment
+// forces, at segment lengths with many and with two slots, and with a last
+// batch not full.
+func TestSharedLaneExact(t *testing.T) {
+	rec := synthRig(testCar(), independentPans, 0, 20, 40*1024+300, 42, outputNoiseFrac, 0)
+	for _, n := range []int{64, 1024, 2048} {
+		cfg := Config{FsHz: 20, SegmentLen: n, Overlap: n / 2, Window: Hann, Workers: 1}
+		shared, err := spectraOf(rec, cfg, 1000)
+		if err != nil {
+			t.Fatal(err)
+		}
+		one, err := NewAccumulator(cfg, rigChannels)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var single *Spectra
+		hop := n / 2
+		for off := 0; off < len(rec.channels[0]); off += hop {
+			block := make([][]float64, len(rec.channels))
+			for c, x := range rec.channels {
+				block[c] = x[off:min(off+hop, len(x))]
+			}
+			one.Write(block)
+			if single, err = one.Spectra(); err != nil && off >= n {
+				t.Fatal(err)
+			}
+		}
+		if shared.Segments != single.Segments || shared.Segments < 2*one.slots {
+			t.Fatalf("N=%d: %d and %d segments, %d slots", n, shared.Segments, single.Segments, one.slots)
+		}
+		for f := range shared.G {
+			for i := range shared.G[f] {
+				for j := range shared.G[f][i] {
+					if shared.G[f][i][j] != single.G[f][i][j] {
+						t.Fatalf("N=%d, bin %d (%d,%d): shared %v, one by one %v", n, f, i, j, shared.G[f][i][j], single.G[f][i][j])
+					}
+				}
+			}
+		}
+	}
+}
+
 // TestEffectiveAveragesHann: Welch's overlap correlation for periodic Hann
 // at 50 % overlap is rho(1) = 1/36 (Harris 1978, Table 1, overlap
 // correlation 16.7 %), so nd = K/(1 + 2 (1 - 1/K)/36).

@@ -167,8 +167,18 @@ func (d *Decimator) Write(block [][]float64) {
 		}
 		for ; d.tNext < d.base+d.have; d.tNext += d.factor {
 			start := d.tNext - d.base - (l - 1)
-			for ch, w := range d.work {
-				d.out[ch] = append(d.out[ch], floats.Dot(d.taps, w[start:start+l]))
+			// four channels a call (dot4), the rest one by one
+			ch := 0
+			for ; ch+4 <= len(d.work); ch += 4 {
+				w := d.work[ch : ch+4]
+				a, b, c, e := dot4(d.taps, w[0][start:start+l], w[1][start:start+l], w[2][start:start+l], w[3][start:start+l])
+				d.out[ch] = append(d.out[ch], a)
+				d.out[ch+1] = append(d.out[ch+1], b)
+				d.out[ch+2] = append(d.out[ch+2], c)
+				d.out[ch+3] = append(d.out[ch+3], e)
+			}
+			for ; ch < len(d.work); ch++ {
+				d.out[ch] = append(d.out[ch], floats.Dot(d.taps, d.work[ch][start:start+l]))
 			}
 		}
 		if len(d.out[0]) > 0 {

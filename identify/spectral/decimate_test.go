@@ -3,7 +3,10 @@ package spectral
 import (
 	"math"
 	"math/cmplx"
+	"math/rand/v2"
 	"testing"
+
+	"gonum.org/v1/gonum/floats"
 )
 
 // TestAntiAliasFilterMeetsSpec evaluates the designed filter's frequency
@@ -141,6 +144,36 @@ func TestDecimationFactor(t *testing.T) {
 		edge := PassbandFraction * 0.5 / float64(q) // cycles/sample
 		if dev := math.Abs(tapResponse(antiAliasTaps(q), edge*(1+RateSlack)) - 1); dev > 3e-4 {
 			t.Errorf("q=%d: response %.2g off unity just past the passband edge", q, dev)
+		}
+	}
+}
+
+// TestDot4MatchesDot: the four-channel dot product gives floats.Dot's bits
+// for every length (the steps of four and the one to three left over) and
+// for the length of a real anti-alias filter, on seeded random data whose
+// magnitudes span several decades (so that the order of the additions
+// shows in the last bits).
+func TestDot4MatchesDot(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	lengths := []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 13, 64, 65, 66, 67, len(antiAliasTaps(25))}
+	for _, n := range lengths {
+		h := make([]float64, n)
+		x := newMatrix(4, n+3)
+		for i := range h {
+			h[i] = rng.NormFloat64() * math.Pow(10, float64(rng.IntN(7)-3))
+		}
+		for _, v := range x {
+			for i := range v {
+				v[i] = rng.NormFloat64() * math.Pow(10, float64(rng.IntN(7)-3))
+			}
+		}
+		got := [4]float64{}
+		got[0], got[1], got[2], got[3] = dot4(h, x[0], x[1], x[2][1:], x[3][3:])
+		want := [4]float64{floats.Dot(h, x[0][:n]), floats.Dot(h, x[1][:n]), floats.Dot(h, x[2][1:n+1]), floats.Dot(h, x[3][3:n+3])}
+		for k := range got {
+			if math.Float64bits(got[k]) != math.Float64bits(want[k]) {
+				t.Errorf("length %d, operand %d: %v, floats.Dot %v", n, k, got[k], want[k])
+			}
 		}
 	}
 }

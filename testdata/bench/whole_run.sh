@@ -18,6 +18,7 @@
 # when it is otherwise idle: another busy process takes a core from the
 # two-core ridemodes run and not from the one-core baseline.
 set -euo pipefail
+export LC_ALL=C # a decimal point in $EPOCHREALTIME and for awk and sort
 repeats=3
 if [ "${1:-}" = "-r" ]; then repeats=$2; shift 2; fi
 durations=("$@")
@@ -32,11 +33,15 @@ trap 'rm -rf "$work"' EXIT
 go build -o "$work/ridemodes" ./cmd/ridemodes
 
 median() { sort -g | awk '{v[NR]=$1} END {print (NR%2) ? v[(NR+1)/2] : (v[NR/2]+v[NR/2+1])/2}'; }
-# timed LABEL CMD...: runs CMD, appends "wall_s rss_kB" to $work/LABEL.
+# timed LABEL CMD...: runs CMD, appends "wall_s rss_kB" to $work/LABEL. The
+# wall time is bash's clock around the run (microseconds; GNU time's %e has
+# only 10 ms, 5 % of ridemodes' run), GNU time gives the peak RSS.
 timed() {
   local label=$1; shift
-  /usr/bin/time -o "$work/time.txt" -f "%e %M" "$@" > /dev/null
-  cat "$work/time.txt" >> "$work/$label"
+  local t0=$EPOCHREALTIME
+  /usr/bin/time -o "$work/time.txt" -f "%M" "$@" > /dev/null
+  local t1=$EPOCHREALTIME
+  echo "$(awk -v a="$t0" -v b="$t1" 'BEGIN {printf "%.4f", b - a}') $(cat "$work/time.txt")" >> "$work/$label"
 }
 
 echo "machine: $(nproc) cores, $(grep -m1 'model name' /proc/cpuinfo | cut -d: -f2 | sed 's/^ //'), $(go version | cut -d' ' -f3)"

@@ -118,7 +118,7 @@ func runCommand(cmd *cobra.Command, args ...string) error {
 	err := root.ExecuteContext(cmd.Context())
 	switch {
 	case errors.Is(err, errTargetsFailed):
-		fmt.Fprintf(cmd.OutOrStdout(), "\nThe finding: the car as built is not the car as designed. On this log %s exits %d (%v):\n"+
+		fmt.Fprintf(cmd.OutOrStdout(), "\nThe finding: the car as built is not the car as designed. Here %s exits %d (%v):\n"+
 			"a script or CI job stops there. The demo itself exits 0: it ran as it should.\n", args[0], exitTargets, errTargetsFailed)
 		return nil
 	case errors.Is(err, errInconclusive):

@@ -127,7 +127,7 @@ func rigCSV(c rigCase) ([]byte, error) {
 		return nil, err
 	}
 	var buf bytes.Buffer
-	if err := ingest.WriteLog(&buf, log.Notes, log.RateHz, 0, log.Columns); err != nil {
+	if err := log.Write(&buf); err != nil {
 		return nil, err
 	}
 	return buf.Bytes(), nil

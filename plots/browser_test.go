@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"context"
 	"fmt"
-	"io"
 	"math"
 	"net/url"
 	"os"
@@ -78,9 +77,7 @@ func demoReports(t *testing.T, dir string) map[string]string {
 	write := func(name string, log *simulate.Log) string {
 		path := filepath.Join(dir, name)
 		log.Notes = append(log.Notes, "test date 2026-02-27 (invented)")
-		if err := ingest.WriteAtomic(path, func(w io.Writer) error {
-			return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-		}); err != nil {
+		if err := log.WriteFile(path); err != nil {
 			t.Fatal(err)
 		}
 		return path

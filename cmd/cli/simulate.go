@@ -2,7 +2,6 @@ package cli
 
 import (
 	"fmt"
-	"io"
 
 	"github.com/spf13/cobra"
 
@@ -119,9 +118,7 @@ func runSimulate(cmd *cobra.Command, setupPath, test, outPath string, o *simulat
 	if err != nil {
 		return libraryError(err)
 	}
-	if err := writeOutput(cmd, outPath, func(w io.Writer) error {
-		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-	}); err != nil {
+	if err := writeOutput(cmd, outPath, log.Write); err != nil {
 		return err
 	}
 	n := len(log.Columns[0].Data)

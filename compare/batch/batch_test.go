@@ -7,7 +7,6 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -68,23 +67,17 @@ func writeLog(t *testing.T, path, test string, rearScale float64, seed uint64) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	car := compare.DesignOf(setup.Vehicle)
-	car.RearRateNPerM *= rearScale
+	setup.Vehicle.RearRateNPerM *= rearScale
 	o := simulate.Defaults(test)
 	o.NoiseFraction, o.Seed = 0.02, seed
-	var log *simulate.Log
 	if test == "rig" {
 		o.DurationS = rigLogS
-		log, err = simulate.Rig(car, setup.Sensors, setup.Inputs, o)
-	} else {
-		log, err = simulate.Drop(car, setup.Sensors, o)
 	}
+	log, err := simulate.Run(setup, test, o)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if err := ingest.WriteAtomic(path, func(w io.Writer) error {
-		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-	}); err != nil {
+	if err := log.WriteFile(path); err != nil {
 		t.Fatal(err)
 	}
 }

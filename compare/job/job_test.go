@@ -3,7 +3,6 @@ package job_test
 import (
 	"context"
 	"errors"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -47,9 +46,7 @@ func simulated(t *testing.T, path string, car compare.Vehicle, test string, o si
 	if err != nil {
 		t.Fatal(err)
 	}
-	if err := ingest.WriteAtomic(path, func(w io.Writer) error {
-		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-	}); err != nil {
+	if err := log.WriteFile(path); err != nil {
 		t.Fatal(err)
 	}
 	return path

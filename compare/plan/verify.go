@@ -1,7 +1,6 @@
 package plan
 
 import (
-	"bufio"
 	"context"
 	"errors"
 	"fmt"
@@ -16,7 +15,6 @@ import (
 	"github.com/ridemodes/ridemodes/compare/simulate"
 	"github.com/ridemodes/ridemodes/identify"
 	"github.com/ridemodes/ridemodes/identify/body"
-	"github.com/ridemodes/ridemodes/ingest"
 )
 
 // Seeds: the refining tests use 1, 2, ..., the verifying ones start
@@ -97,7 +95,7 @@ func (p *planner) analyseSimulated(ctx context.Context, dir string, seeds []uint
 		}
 		path := filepath.Join(dir, fmt.Sprintf("%s-%d.csv", p.req.Test, seed))
 		paths = append(paths, path)
-		if err := writeLog(path, log); err != nil {
+		if err := log.WriteFile(path); err != nil {
 			return nil, err
 		}
 	}
@@ -110,22 +108,6 @@ func (p *planner) analyseSimulated(ctx context.Context, dir string, seeds []uint
 		return nil, err
 	}
 	return out.Result, nil
-}
-
-func writeLog(path string, log *simulate.Log) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	w := bufio.NewWriterSize(f, 1<<16)
-	err = ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-	if err == nil {
-		err = w.Flush()
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	return err
 }
 
 // errorsOf returns estimate minus truth of every quantity of r.

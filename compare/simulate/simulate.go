@@ -3,6 +3,7 @@ package simulate
 import (
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
 
@@ -82,6 +83,17 @@ type Log struct {
 	Notes   []string
 	RateHz  float64
 	Columns []ingest.LogColumn
+}
+
+// Write writes the log as CSV in the dialect package ingest reads
+// (ingest.WriteLog: the notes, a time column from 0 s, the channels).
+func (l *Log) Write(w io.Writer) error {
+	return ingest.WriteLog(w, l.Notes, l.RateHz, 0, l.Columns)
+}
+
+// WriteFile writes the log to path atomically (ingest.WriteAtomic).
+func (l *Log) WriteFile(path string) error {
+	return ingest.WriteAtomic(path, l.Write)
 }
 
 // ErrUndamped is matched (errors.Is) by the refusal to simulate a car

@@ -70,7 +70,7 @@ func TestRigLogReproducesTransmissibility(t *testing.T) {
 func textRoundTrip(t *testing.T, log *Log) [][]float64 {
 	t.Helper()
 	var buf bytes.Buffer
-	if err := ingest.WriteLog(&buf, log.Notes, log.RateHz, 0, log.Columns); err != nil {
+	if err := log.Write(&buf); err != nil {
 		t.Fatal(err)
 	}
 	lines := bytes.Split(bytes.TrimSpace(buf.Bytes()), []byte("\n"))
@@ -220,7 +220,7 @@ func TestReproducibleByteForByte(t *testing.T) {
 			t.Fatal(err)
 		}
 		var buf bytes.Buffer
-		if err := ingest.WriteLog(&buf, log.Notes, log.RateHz, 0, log.Columns); err != nil {
+		if err := log.Write(&buf); err != nil {
 			t.Fatal(err)
 		}
 		return buf.Bytes()

@@ -8,7 +8,6 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
-	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -80,9 +79,7 @@ func analyseDrop(dir string) (*compare.Result, error) {
 		return nil, err
 	}
 	path := filepath.Join(dir, "drop.csv")
-	if err := ingest.WriteAtomic(path, func(w io.Writer) error {
-		return ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
-	}); err != nil {
+	if err := log.WriteFile(path); err != nil {
 		return nil, err
 	}
 	out, err := job.Analyze(context.Background(), job.Options{LogPath: path, SetupPath: exampleSetup, Test: "drop", ToolVersion: "test"})

@@ -64,7 +64,7 @@ func runChain(c rigCase) (*FRFSet, []compare.Mode, error) {
 		return nil, nil, err
 	}
 	var buf bytes.Buffer
-	if err := ingest.WriteLog(&buf, lg.Notes, lg.RateHz, 0, lg.Columns); err != nil {
+	if err := lg.Write(&buf); err != nil {
 		return nil, nil, err
 	}
 	channels := append([]string{"pan_f", "pan_r"}, outNames...)

@@ -188,7 +188,7 @@ func (j caseJob) writeLog(path string) error {
 		cw = &coarseTime{w: bufio.NewWriterSize(f, 1<<16), decimals: j.cond.decimals}
 		w = cw
 	}
-	err = ingest.WriteLog(w, log.Notes, log.RateHz, 0, log.Columns)
+	err = log.Write(w)
 	if err == nil && cw != nil {
 		err = cw.w.Flush()
 	}

@@ -1,7 +1,6 @@
 package plots
 
 import (
-	"bytes"
 	_ "embed"
 	"errors"
 	"fmt"
@@ -265,14 +264,5 @@ func WritePlanReport(dir string, p *plan.Plan) ([]string, error) {
 				", log axes; dashed level: the wanted sd; dotted line: the plan.",
 			func() (*Figure, error) { return PlanFigure(d) }})
 	}
-	pngs, figures, err := drawFigures(specs)
-	if err != nil {
-		return nil, err
-	}
-	v.Figures = figures
-	var page bytes.Buffer
-	if err := planTemplate.Execute(&page, v); err != nil {
-		return nil, fmt.Errorf("plots: plan report: %w", err)
-	}
-	return writeReportFiles(dir, specs, pngs, PlanReportFile, page.Bytes())
+	return writePage(dir, specs, planTemplate, &v, &v.Figures, PlanReportFile, "plan report")
 }

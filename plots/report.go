@@ -96,18 +96,25 @@ func WriteReport(dir string, in ReportInput) (written []string, err error) {
 	if in.Result == nil {
 		return nil, errors.New("plots: report: no result to report")
 	}
-	specs := reportFigures(in)
 	view := newReportView(in)
-	pngs, figures, err := drawFigures(specs)
+	return writePage(dir, reportFigures(in), reportTemplate, &view, &view.Figures, ReportFile, "report")
+}
+
+// writePage draws the figures of specs into *figures (a field of view),
+// renders the page with tmpl over view and writes it with the figures'
+// PNG files (writeReportFiles); what names the page in errors.
+func writePage(dir string, specs []figureSpec, tmpl *template.Template, view any, figures *[]figureView,
+	pageFile, what string) ([]string, error) {
+	pngs, views, err := drawFigures(specs)
 	if err != nil {
 		return nil, err
 	}
-	view.Figures = figures
+	*figures = views
 	var page bytes.Buffer
-	if err := reportTemplate.Execute(&page, view); err != nil {
-		return nil, fmt.Errorf("plots: report: %w", err)
+	if err := tmpl.Execute(&page, view); err != nil {
+		return nil, fmt.Errorf("plots: %s: %w", what, err)
 	}
-	return writeReportFiles(dir, specs, pngs, ReportFile, page.Bytes())
+	return writeReportFiles(dir, specs, pngs, pageFile, page.Bytes())
 }
 
 // drawFigures draws specs and encodes each as PNG (the file filed beside

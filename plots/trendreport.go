@@ -1,7 +1,6 @@
 package plots
 
 import (
-	"bytes"
 	_ "embed"
 	"errors"
 	"fmt"
@@ -86,16 +85,7 @@ func WriteTrendReport(dir string, c *trend.Campaign) ([]string, error) {
 		specs = append(specs, figureSpec{"trend-" + s.Quantity.Key() + ".png", s.Quantity.Name, caption,
 			func() (*Figure, error) { return TrendFigure(d) }})
 	}
-	pngs, figures, err := drawFigures(specs)
-	if err != nil {
-		return nil, err
-	}
-	view.Figures = figures
-	var page bytes.Buffer
-	if err := trendTemplate.Execute(&page, view); err != nil {
-		return nil, fmt.Errorf("plots: trend report: %w", err)
-	}
-	return writeReportFiles(dir, specs, pngs, TrendReportFile, page.Bytes())
+	return writePage(dir, specs, trendTemplate, &view, &view.Figures, TrendReportFile, "trend report")
 }
 
 // trendData is the figure input of one series of c.

@@ -56,7 +56,7 @@ is inconclusive (the most severe of the logs).
 	f := cmd.Flags()
 	f.StringVar(&setupPath, "setup", "", "setup `FILE` (TOML) of every log given as an argument")
 	f.StringVar(&manifest, "manifest", "", "campaign manifest `FILE` (CSV: log,setup,car,run, then metadata columns)")
-	f.StringVar(&test, "test", "", "the `TEST`, rig or drop, of every log (a manifest's test column wins; default: rig when the setup has [[input]] tables)")
+	testFlag(cmd, &test, "the `TEST`, rig or drop, of every log (a manifest's test column wins; default: rig when the setup has [[input]] tables)")
 	f.StringVar(&outDir, "out", "ridemodes-batch", "output `DIR`: results/, summary.csv, summary.jsonl, report/")
 	f.IntVar(&workers, "workers", 0, "`N` logs analysed at once (default: the number of cores)")
 	f.StringVar(&target, "store", "", "store of every run: an SQLite `FILE` or a postgres:// URL (default: campaign.sqlite under --out)")
@@ -65,7 +65,6 @@ is inconclusive (the most severe of the logs).
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.MarkFlagFilename("manifest", "csv")
 	cmd.MarkFlagDirname("out")
-	cmd.RegisterFlagCompletionFunc("test", cobra.FixedCompletions([]string{"rig", "drop"}, cobra.ShellCompDirectiveNoFileComp))
 	return cmd
 }
 

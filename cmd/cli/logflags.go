@@ -15,7 +15,7 @@ import (
 func registerLogFlags(cmd *cobra.Command, o *job.Options) {
 	fl := cmd.Flags()
 	fl.StringVar(&o.SetupPath, "setup", "", "setup `FILE` (TOML): vehicle, sensors, inputs, targets")
-	fl.StringVar(&o.Test, "test", "", "the `TEST`: rig or drop (default: rig when the setup has [[input]] tables); with drop the inputs are ignored, so one setup serves both tests")
+	testFlag(cmd, &o.Test, "the `TEST`: rig or drop (default: rig when the setup has [[input]] tables); with drop the inputs are ignored, so one setup serves both tests")
 	fl.Float64Var(&o.StartS, "start", 0, "analyse from this time in `SECONDS`, counted from the log's first sample")
 	fl.Float64Var(&o.EndS, "end", 0, "analyse up to this time in `SECONDS` (default: to the end of the log)")
 	fl.Float64Var(&o.SampleRateHz, "rate", 0, "sample rate in `HZ` of a log without a time column (default from [analysis] sample_rate_hz)")
@@ -28,7 +28,6 @@ func registerLogFlags(cmd *cobra.Command, o *job.Options) {
 	cmd.MarkFlagRequired("setup")
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.RegisterFlagCompletionFunc("window", cobra.FixedCompletions(ingest.Windows, cobra.ShellCompDirectiveNoFileComp))
-	cmd.RegisterFlagCompletionFunc("test", cobra.FixedCompletions([]string{"rig", "drop"}, cobra.ShellCompDirectiveNoFileComp))
 	o.ToolVersion = version()
 	o.Progress = func(path string, size int64) (func(int64, int64), func()) {
 		return terminalProgress(cmd.ErrOrStderr(), size, "reading "+path)
@@ -43,4 +42,11 @@ func outputGuard(flag, out string, inputs ...string) error {
 		}
 	}
 	return nil
+}
+
+// testFlag adds the --test flag (rig or drop) bound to dst, with shell
+// completion of its two values.
+func testFlag(cmd *cobra.Command, dst *string, usage string) {
+	cmd.Flags().StringVar(dst, "test", "", usage)
+	cmd.RegisterFlagCompletionFunc("test", cobra.FixedCompletions([]string{"rig", "drop"}, cobra.ShellCompDirectiveNoFileComp))
 }

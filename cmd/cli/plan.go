@@ -58,7 +58,7 @@ decay model) is refined by seeded simulated tests through the real analysis;
 	}
 	f := cmd.Flags()
 	f.StringVar(&req.SetupPath, "setup", "", "setup file (TOML): design model, sensors, pans, band, [targets]")
-	f.StringVar(&req.Test, "test", "", "kind of test: rig or drop")
+	testFlag(cmd, &req.Test, "kind of test: rig or drop")
 	f.Float64Var(&req.Wanted.FrequencySDPct, "frequency-sd-pct", 0, "wanted sd of each natural frequency, %")
 	f.Float64Var(&req.Wanted.DampingSD, "damping-sd", 0, "wanted sd of each damping ratio")
 	f.Float64Var(&req.Wanted.NodeSDM, "node-sd-m", 0, "wanted sd of each node within two wheelbases of the CG, m")
@@ -75,6 +75,5 @@ decay model) is refined by seeded simulated tests through the real analysis;
 	cmd.MarkFlagRequired("test")
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.MarkFlagFilename("json", "json")
-	cmd.RegisterFlagCompletionFunc("test", cobra.FixedCompletions([]string{"rig", "drop"}, cobra.ShellCompDirectiveNoFileComp))
 	return cmd
 }

@@ -54,7 +54,7 @@ than analyze needs for the setup gets a warning.
 	o.DurationS, o.DropHeightM, o.PreTriggerS = 0, drop.DropHeightM, drop.PreTriggerS
 	f := cmd.Flags()
 	f.StringVar(&setupPath, "setup", "", "setup `FILE` (TOML) describing the vehicle, sensors and inputs")
-	f.StringVar(&test, "test", "", "kind of `TEST`: rig or drop")
+	testFlag(cmd, &test, "kind of `TEST`: rig or drop")
 	f.StringVar(&outPath, "out", "", "log `FILE` to write (CSV; - for standard output)")
 	f.Float64Var(&o.DurationS, "duration", 0, fmt.Sprintf("log length in `SECONDS` (default %g for a rig test, %g for a drop)", rig.DurationS, drop.DurationS))
 	f.Float64Var(&o.RateHz, "rate", o.RateHz, "sample rate in `HZ`")
@@ -77,7 +77,6 @@ than analyze needs for the setup gets a warning.
 	cmd.MarkFlagRequired("out")
 	cmd.MarkFlagFilename("setup", "toml")
 	cmd.MarkFlagFilename("out", "csv")
-	cmd.RegisterFlagCompletionFunc("test", cobra.FixedCompletions([]string{"rig", "drop"}, cobra.ShellCompDirectiveNoFileComp))
 	return cmd
 }
 

@@ -162,10 +162,25 @@ func BenchmarkParseRow(b *testing.B) {
 }
 
 // BenchmarkParseChunk parses one chunk of a generated log (the writer's
-// format, 5 columns) the way a pipeline worker does: lines found in the
-// chunk's buffer, every cell converted, the time cells' decimal places
-// counted.
-func BenchmarkParseChunk(b *testing.B) {
+// format, 5 columns) the way a pipeline worker does: every cell converted
+// and stored in the chunk's columns, the time cells' decimal places counted.
+// Its rows are plain, so they take the fast path (fastRow).
+func BenchmarkParseChunk(b *testing.B) { benchChunk(b, nil, true) }
+
+// BenchmarkParseChunkGeneral parses the same chunk without the fast path:
+// each line found with bytes.IndexByte, then parseRow.
+func BenchmarkParseChunkGeneral(b *testing.B) { benchChunk(b, nil, false) }
+
+// BenchmarkParseChunkUnusual parses the chunk with a blank before every
+// line end: the fast path reads each row to its end before handing it to
+// the general path (the worst case for the fast path).
+func BenchmarkParseChunkUnusual(b *testing.B) {
+	benchChunk(b, func(body []byte) []byte { return bytes.ReplaceAll(body, nl, []byte(" \n")) }, true)
+}
+
+// benchChunk times parseJob on the rows of a generated chunk, changed by
+// edit when not nil, with the fast path or without it.
+func benchChunk(b *testing.B, edit func([]byte) []byte, fast bool) {
 	data := genBytes(chunkBytes, 5)
 	r, err := NewReader(strings.NewReader(string(data)), "b.csv", -1, Options{})
 	if err != nil {
@@ -173,10 +188,14 @@ func BenchmarkParseChunk(b *testing.B) {
 	}
 	body := data[bytes.Index(data, []byte(genHeader))+len(genHeader):]
 	body = body[:bytes.LastIndexByte(body, '\n')+1]
-	buf := make([]byte, len(body), chunkBytes+MaxLineBytes+2)
+	if edit != nil {
+		body = edit(body)
+	}
+	buf := make([]byte, len(body), len(body)+MaxLineBytes+2)
 	copy(buf, body)
 	j := &job{buf: buf, startLine: 4, nLines: bytes.Count(buf, nl)}
 	p := r.newRowParser()
+	p.fast = fast
 	c := &parsedChunk{}
 	nch := len(r.info.Channels)
 	vals := make([]float64, nch)

@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"errors"
 	"math"
+	"reflect"
+	"strings"
 	"testing"
 )
 
@@ -57,4 +59,119 @@ func FuzzRead(f *testing.F) {
 			}
 		}
 	})
+}
+
+// FuzzParseJob checks the fast path for plain rows (fastRow) against the
+// general path (parseJob's checks and parseRow) on arbitrary data rows under
+// a few headers: the same rows, values (bits), time decimal places, first
+// non-blank and blank lines, error and decimal separator. The reference is
+// the general path as it was before the fast path existed.
+func FuzzParseJob(f *testing.F) {
+	for _, s := range []string{
+		"0,1.5,-2\n0.01,2e-3,3\n0.02,+1,.5\n",
+		"0,1,2\r\n1,2,3\r\n2,3,4",
+		"0,1,2\n1, 2,3\n2,\"3\",4\n3,4,5\n",
+		"0,1,2\n\n1,2,3\n",
+		"0,1,2\n1,2,3\n\n\n",
+		"0,1,2\n1,2\n",
+		"0,1,2,\n1,2,3,\n2,3,4\n",
+		"0,1,2\n1,2,3,4\n",
+		"0,1,2\n1,nan,3\n",
+		"0,1,2\n1,1e400,3\n",
+		"0,1,2\n1,2\x003\n",
+		"0,1,2\n1,2,3\r\r\n",
+		"0,1,2\n1,2,3\r",
+		"0\n1\n2 \n3\n",
+		"0;1;2\n1;2;3\n2;3,5;4\n3;4;5\n",
+		"0;1,5;2\n0,5;2;3\n",
+		"0\t1.5\t2\n1\t2\t3\n",
+		"0,123456789012345678901,1e-30\n1,0.1234567890123,1\n",
+	} {
+		for h := range fuzzJobHeads {
+			f.Add(uint8(h), []byte(s))
+		}
+	}
+	f.Fuzz(func(t *testing.T, h uint8, body []byte) {
+		hd := fuzzJobHeads[int(h)%len(fuzzJobHeads)]
+		checkFastPath(t, hd.head, hd.opt, body)
+	})
+}
+
+// checkFastPath parses body, the data rows after the header head, as one
+// job with the fast path and without it, and fails t when the two differ.
+func checkFastPath(t *testing.T, head string, opt Options, body []byte) {
+	t.Helper()
+	in := append([]byte(head), body...)
+	var got, want parsedChunk
+	var ps [2]*rowParser
+	for i, c := range []*parsedChunk{&got, &want} {
+		r, err := NewReader(bytes.NewReader(in), "fuzz.csv", -1, opt)
+		if err != nil {
+			return
+		}
+		p := r.newRowParser()
+		if i == 1 {
+			p.fast = false
+		}
+		nl := bytes.Count(body, []byte{'\n'})
+		if len(body) > 0 && body[len(body)-1] != '\n' {
+			nl++
+		}
+		j := &job{buf: body, startLine: r.line + 1, nLines: nl, eof: true}
+		timeScale := r.timeScale
+		if !r.info.HasTime {
+			timeScale = 0
+		}
+		p.parseJob(j, c, len(r.info.Channels), timeScale, make([]float64, len(r.info.Channels)))
+		ps[i] = p
+	}
+	if got.rows != want.rows || got.firstNonBlank != want.firstNonBlank || got.blank != want.blank ||
+		got.timePlaces != want.timePlaces || !reflect.DeepEqual(got.err, want.err) {
+		t.Fatalf("fast path: %d rows, lines %d/%d, places %v, error %v;\ngeneral: %d rows, lines %d/%d, places %v, error %v",
+			got.rows, got.firstNonBlank, got.blank, got.timePlaces, got.err,
+			want.rows, want.firstNonBlank, want.blank, want.timePlaces, want.err)
+	}
+	if ps[0].sep != ps[1].sep || ps[0].sepLocked != ps[1].sepLocked {
+		t.Fatalf("separator %q (locked %v), general path %q (%v)", ps[0].sep, ps[0].sepLocked, ps[1].sep, ps[1].sepLocked)
+	}
+	for k := range got.rows {
+		if math.Float64bits(got.t[k]) != math.Float64bits(want.t[k]) {
+			t.Fatalf("row %d: time %v, general path %v", k, got.t[k], want.t[k])
+		}
+		for ch := range got.vals {
+			if math.Float64bits(got.vals[ch][k]) != math.Float64bits(want.vals[ch][k]) {
+				t.Fatalf("row %d channel %d: %v, general path %v", k, ch, got.vals[ch][k], want.vals[ch][k])
+			}
+		}
+	}
+}
+
+// fuzzJobHeads are the headers of FuzzParseJob: ',' with time, ';' (the
+// decimal separator found from the rows, or locked by the first one that
+// shows it), tab without time, a trailing delimiter, a skipped column.
+var fuzzJobHeads = []struct {
+	head string
+	opt  Options
+}{
+	{"time [s],a [g],b [m/s^2]\n", Options{}},
+	{"t [ms];a;b\n", Options{}},
+	{"a [g]\tb\tc\n", Options{SampleRateHz: 100}},
+	{"t,a,b,\n", Options{}},
+	{"time [s],a,b\n", Options{Channels: []string{"b"}}},
+}
+
+// The fast path's line length limit, at the limit and one byte past it,
+// with and without "\r\n" and a trailing delimiter.
+func TestFastPathLongLines(t *testing.T) {
+	for _, n := range []int{MaxLineBytes, MaxLineBytes + 1} {
+		for _, end := range []string{"\n", "\r\n", ",\n", ""} {
+			head := "t,a,b\n"
+			if end == ",\n" {
+				head = "t,a,b,\n"
+			}
+			// "0,1," then a number padded so the line (without its end) is n bytes
+			line := "0,1," + strings.Repeat("0", n-len("0,1,")-len(strings.TrimRight(end, "\r\n"))-1) + "5"
+			checkFastPath(t, head, Options{}, []byte("0,1,2\n"+line+end+"1,2,3\n"))
+		}
+	}
 }

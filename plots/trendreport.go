@@ -8,6 +8,7 @@ import (
 	"math"
 	"slices"
 	"strings"
+	"sync"
 
 	"github.com/ridemodes/ridemodes/compare"
 	"github.com/ridemodes/ridemodes/compare/trend"
@@ -20,7 +21,9 @@ const TrendReportFile = "index.html"
 var trendSource string
 
 // trendTemplate is the trend page; it shares the run report's style.
-var trendTemplate = template.Must(template.Must(reportTemplate.Clone()).New("trend").Parse(trendSource))
+var trendTemplate = sync.OnceValue(func() *template.Template {
+	return template.Must(parseReport().New("trend").Parse(trendSource))
+})
 
 // trendView is what the trend template renders: every number already
 // formatted.
@@ -85,7 +88,7 @@ func WriteTrendReport(dir string, c *trend.Campaign) ([]string, error) {
 		specs = append(specs, figureSpec{"trend-" + s.Quantity.Key() + ".png", s.Quantity.Name, caption,
 			func() (*Figure, error) { return TrendFigure(d) }})
 	}
-	return writePage(dir, specs, trendTemplate, &view, &view.Figures, TrendReportFile, "trend report")
+	return writePage(dir, specs, trendTemplate(), &view, &view.Figures, TrendReportFile, "trend report")
 }
 
 // trendData is the figure input of one series of c.

@@ -25,6 +25,9 @@ type band struct {
 	loHz  float64
 	hiHz  float64
 	pairs int
+	// plain: the unweighted sums of the sweep's highest order, set by
+	// stabilise before the sweep (nil: every order sums its own)
+	plain *plainSums
 }
 
 func newBand(set *FRFSet, loHz, hiHz float64) (*band, int) {
@@ -83,14 +86,15 @@ func newBand(set *FRFSet, loHz, hiHz float64) (*band, int) {
 func lscfPoles(b *band, order int) ([]complex128, [][]complex128, error) {
 	ws := 2 * math.Pi * b.hiHz
 	extra := make([]float64, len(b.omega)) // Sanathanan-Koerner weights 1/|A_prev|^2
-	for n := range extra {
-		extra[n] = 1
-	}
 	var a *mat.VecDense
 	var rs []*mat.Dense
 	for it := 0; it <= skIterations; it++ {
 		var err error
-		if a, rs, err = denominator(b, order, extra); err != nil {
+		w := extra
+		if it == 0 {
+			w = nil // no weights yet
+		}
+		if a, rs, err = denominator(b, order, w); err != nil {
 			return nil, nil, err
 		}
 		mean := 0.0
@@ -161,11 +165,10 @@ func poleShapes(b *band, a *mat.VecDense, rs []*mat.Dense, poles []complex128, w
 
 // denominator solves the reduced normal equations of lscfPoles for the
 // monic denominator's lower coefficients a_0..a_{order-1}, each bin's
-// weight multiplied by extra[n]. It also returns, per FRF p, R_p^-1 S_p,
-// from which the numerator coefficients follow.
+// weight multiplied by extra[n] (nil: by one). It also returns, per FRF p,
+// R_p^-1 S_p, from which the numerator coefficients follow.
 func denominator(b *band, order int, extra []float64) (*mat.VecDense, []*mat.Dense, error) {
 	n1 := order + 1
-	ws := 2 * math.Pi * b.hiHz
 	M := mat.NewSymDense(n1, nil)
 	// The sums of R, S and T run over every bin: plain row-major slices
 	// (R and T upper triangles only), wrapped as matrices once per pair.
@@ -178,57 +181,17 @@ func denominator(b *band, order int, extra []float64) (*mat.VecDense, []*mat.Den
 	var chol mat.Cholesky
 	var prod mat.Dense
 	rs := make([]*mat.Dense, b.pairs)
-	// x = i u is purely imaginary, so x^j = i^j u^j and
-	// conj(x^j) x^l = i^(l-j) u^(j+l): real when j and l have the same
-	// parity, imaginary otherwise. The sums take that form: pw[j] is u^j
-	// (by repeated products, as the powers of x would be), sg[j] the sign
-	// of i^j's real or imaginary unit (+ + - - ...). Every term is the
-	// product the complex arithmetic would round, with its sign, and the
-	// terms a zero would add are left out.
-	pw := make([]float64, n1)
-	sg := make([]float64, n1)
-	for j := range sg {
-		sg[j] = 1
-		if j%4 >= 2 {
-			sg[j] = -1
-		}
-	}
+	var sc sumScratch
 	for p := range b.pairs {
-		clear(rSum)
-		clear(sSum)
-		clear(tSum)
-		for n, om := range b.omega {
-			w2 := extra[n] / (b.sigma[p][n] * b.sigma[p][n])
-			hr, hi := real(b.h[p][n]), imag(b.h[p][n])
-			wa := w2 * (hr*hr + hi*hi) // w2 |H|^2
-			u := om / ws
-			pw[0] = 1
-			for j := 1; j < n1; j++ {
-				pw[j] = pw[j-1] * u
-			}
-			for j := range n1 {
-				rRow, sRow, tRow := rSum[j*n1:(j+1)*n1], sSum[j*n1:(j+1)*n1], tSum[j*n1:(j+1)*n1]
-				// same parity: q = conj(x^j) x^l = sg[j] sg[l] u^j u^l, real
-				for l := j & 1; l < n1; l += 2 {
-					q := sg[j] * sg[l] * (pw[j] * pw[l])
-					if l >= j {
-						rRow[l] += w2 * q
-						tRow[l] += wa * q
-					}
-					// S[j][l] = Re(conj(X_j)^T Y_l) with Y = -w H x^l.
-					sRow[l] -= w2 * (q * hr)
-				}
-				// other parity: q = +-i sg[j] sg[l] u^j u^l (+ for even j),
-				// so Re(q H) = -+ sg[j] sg[l] u^j u^l Im(H)
-				for l := 1 - j&1; l < n1; l += 2 {
-					v := sg[j] * sg[l] * (pw[j] * pw[l])
-					if j&1 == 0 {
-						sRow[l] -= w2 * -(v * hi)
-					} else {
-						sRow[l] -= w2 * (v * hi)
-					}
-				}
-			}
+		if extra == nil && b.plain != nil && order <= b.plain.order {
+			// the sums without reweighting, as the full sweep's highest
+			// order gave them (see plainSums)
+			b.plain.sub(p, order, rSum, sSum, tSum)
+		} else {
+			clear(rSum)
+			clear(sSum)
+			clear(tSum)
+			sc.add(b, p, n1, extra, rSum, sSum, tSum)
 		}
 		if !chol.Factorize(R) {
 			return nil, nil, fmt.Errorf("fraction polynomial order %d: the numerator normal equations are singular (too few bins or too high an order)", order)
@@ -259,6 +222,109 @@ func denominator(b *band, order int, extra []float64) (*mat.VecDense, []*mat.Den
 		return nil, nil, fmt.Errorf("fraction polynomial order %d: the denominator equations are singular: %w", order, err)
 	}
 	return &a, rs, nil
+}
+
+// sumScratch holds the per-bin powers of sumScratch.add.
+type sumScratch struct{ sp []float64 }
+
+// add adds FRF p's terms of the sums R, S and T of order n1-1 over every
+// bin of the band to rSum, sSum and tSum (row-major n1 x n1; R and T upper
+// triangles only), each bin's weight multiplied by extra[n] (nil: by one).
+//
+// x = i u is purely imaginary, so x^j = i^j u^j and conj(x^j) x^l =
+// i^(l-j) u^(j+l): real when j and l have the same parity, imaginary
+// otherwise. The sums take that form: sp[j] is u^j (by repeated products,
+// as the powers of x would be) with the sign of i^j's real or imaginary
+// unit (+ + - - ...), so that sp[j] sp[l] is the product the complex
+// arithmetic would round, with its sign; the terms a zero would add are
+// left out. The entries of order n are those of any higher order's leading
+// n+1 rows and columns, bit for bit: each sums the same terms in bin order.
+func (sc *sumScratch) add(b *band, p, n1 int, extra []float64, rSum, sSum, tSum []float64) {
+	if cap(sc.sp) < n1 {
+		sc.sp = make([]float64, n1)
+	}
+	sp := sc.sp[:n1]
+	ws := 2 * math.Pi * b.hiHz
+	for n, om := range b.omega {
+		w2 := 1 / (b.sigma[p][n] * b.sigma[p][n])
+		if extra != nil {
+			w2 = extra[n] / (b.sigma[p][n] * b.sigma[p][n])
+		}
+		hr, hi := real(b.h[p][n]), imag(b.h[p][n])
+		wa := w2 * (hr*hr + hi*hi) // w2 |H|^2
+		u := om / ws
+		pw := 1.0
+		sp[0] = 1
+		for j := 1; j < n1; j++ {
+			pw *= u
+			sp[j] = pw
+			if j%4 >= 2 {
+				sp[j] = -pw
+			}
+		}
+		for j, spj := range sp {
+			rRow, sRow, tRow := rSum[j*n1:][:n1], sSum[j*n1:][:n1], tSum[j*n1:][:n1]
+			// same parity: q = conj(x^j) x^l, real; S[j][l] =
+			// Re(conj(X_j)^T Y_l) with Y = -w H x^l
+			for l := j & 1; l < j; l += 2 {
+				sRow[l] -= w2 * ((spj * sp[l]) * hr)
+			}
+			for l := j; l < len(sp); l += 2 {
+				q := spj * sp[l]
+				rRow[l] += w2 * q
+				tRow[l] += wa * q
+				sRow[l] -= w2 * (q * hr)
+			}
+			// other parity: q = +-i sp[j] sp[l] (+ for even j), so
+			// Re(q H) = -+ sp[j] sp[l] Im(H)
+			if j&1 == 0 {
+				for l := 1; l < len(sp); l += 2 {
+					sRow[l] += w2 * ((spj * sp[l]) * hi)
+				}
+			} else {
+				for l := 0; l < len(sp); l += 2 {
+					sRow[l] -= w2 * ((spj * sp[l]) * hi)
+				}
+			}
+		}
+	}
+}
+
+// plainSums holds, per FRF, the sums R, S and T of lscfPoles' first,
+// unweighted pass at the sweep's highest order: every lower order's first
+// pass takes its leading rows and columns instead of summing over the bins
+// again (one pass of the four per order is saved).
+type plainSums struct {
+	order   int
+	r, s, t [][]float64 // [p], row-major (order+1)^2
+}
+
+// newPlainSums sums every FRF's terms at the given order, the FRFs side by
+// side.
+func newPlainSums(b *band, order int) *plainSums {
+	n1 := order + 1
+	ps := &plainSums{order: order, r: make([][]float64, b.pairs), s: make([][]float64, b.pairs), t: make([][]float64, b.pairs)}
+	var wg sync.WaitGroup
+	for p := range b.pairs {
+		ps.r[p], ps.s[p], ps.t[p] = make([]float64, n1*n1), make([]float64, n1*n1), make([]float64, n1*n1)
+		wg.Go(func() {
+			var sc sumScratch
+			sc.add(b, p, n1, nil, ps.r[p], ps.s[p], ps.t[p])
+		})
+	}
+	wg.Wait()
+	return ps
+}
+
+// sub copies FRF p's sums of the given order (at most ps.order) into the
+// row-major (order+1)^2 slices r, s and t.
+func (ps *plainSums) sub(p, order int, r, s, t []float64) {
+	n1, m1 := order+1, ps.order+1
+	for j := range n1 {
+		copy(r[j*n1:(j+1)*n1], ps.r[p][j*m1:])
+		copy(s[j*n1:(j+1)*n1], ps.s[p][j*m1:])
+		copy(t[j*n1:(j+1)*n1], ps.t[p][j*m1:])
+	}
 }
 
 // roots returns the oscillating roots (Im > 0) of the monic polynomial with
@@ -375,6 +441,7 @@ func stabilise(b *band, maxOrder int) (pts []StabilisationPoint, reached int, er
 		err    error
 	}
 	fits := make([]orderFit, maxOrder+1)
+	b.plain = newPlainSums(b, maxOrder)
 	orders := make(chan int, maxOrder)
 	for order := maxOrder; order >= 2; order-- {
 		orders <- order

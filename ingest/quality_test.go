@@ -321,17 +321,22 @@ func BenchmarkBlockChecks(b *testing.B) {
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/n, "ns/sample")
 }
 
-// TestHighPassBinsExact checks the detector's four-bins-a-pass DFT against
-// the direct sum for one bin at a time (the definition), bit for bit, at the
-// rates that give each remainder of its bin count by four.
+// TestHighPassBinsExact checks the detector's DFT bins, as segment adds
+// them up and as each path this machine can run gives them (hpBinsPaths:
+// the Go loop of four bins a pass, the AVX2 groups of eight), against the
+// direct sum for one bin at a time (the definition), bit for bit, at rates
+// whose bin counts leave every remainder by four and by eight, in odd and
+// even numbers of groups of eight.
 func TestHighPassBinsExact(t *testing.T) {
-	remainders := map[int]bool{}
-	for _, fs := range []float64{98, 99.5, 200, 300} { // 64, 63, 65 and 66 bins
+	byEight, groups := map[int]bool{}, map[int]bool{}
+	// 78, 75, 73, 71, 68, 64, 61, 66 and 65 bins
+	for _, fs := range []float64{20, 21, 21.5, 22, 23, 24.5, 26, 39.5, 512} {
 		d := newHPDetector(fs)
-		remainders[d.kMax%4] = true
-		copy(d.ring[:], noise(hpSegment, uint64(fs), 1))
+		byEight[d.kMax%8] = true
+		groups[(d.kMax+7)/8%2] = true
+		copy(d.ring[:], noise(hpSegment, uint64(10*fs), 1))
 		d.segment()
-		x := make([]float64, hpSegment)
+		var x [hpSegment]float64
 		var sx float64
 		for j, v := range d.ring {
 			x[j] = v
@@ -340,18 +345,30 @@ func TestHighPassBinsExact(t *testing.T) {
 		for j := range x {
 			x[j] = (x[j] - sx/hpSegment) * hpHann[j]
 		}
+		var wantRe, wantIm [hpSegment / 2]float64
 		for k := 1; k <= d.kMax; k++ {
 			var re, im float64
 			for j, v := range x {
 				re += v * math.Cos(2*math.Pi*float64(j*k%hpSegment)/hpSegment)
 				im -= v * math.Sin(2*math.Pi*float64(j*k%hpSegment)/hpSegment)
 			}
+			wantRe[k-1], wantIm[k-1] = re, im
 			if want := re*re + im*im; d.psd[k] != want {
 				t.Errorf("%g Hz, bin %d of %d: %v, want %v", fs, k, d.kMax, d.psd[k], want)
 			}
 		}
+		for name, bins := range hpBinsPaths() {
+			var re, im [hpSegment / 2]float64
+			xs := x
+			bins(&xs, d.kMax, &re, &im)
+			for k := 1; k <= d.kMax; k++ {
+				if math.Float64bits(re[k-1]) != math.Float64bits(wantRe[k-1]) || math.Float64bits(im[k-1]) != math.Float64bits(wantIm[k-1]) {
+					t.Errorf("%s, %g Hz, bin %d of %d: %v%+vi, want %v%+vi", name, fs, k, d.kMax, re[k-1], im[k-1], wantRe[k-1], wantIm[k-1])
+				}
+			}
+		}
 	}
-	if len(remainders) != 4 {
-		t.Errorf("bin counts cover remainders %v by four, want all four", remainders)
+	if len(byEight) != 8 || len(groups) != 2 {
+		t.Errorf("bin counts cover remainders %v by eight and %v of their groups by two, want all", byEight, groups)
 	}
 }

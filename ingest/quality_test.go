@@ -238,6 +238,92 @@ func TestWarningsJSONShape(t *testing.T) {
 	}
 }
 
+// plainScan is chanQuality.scan as a plain loop, sample by sample: the
+// definition TestScanMatchesPlainLoop holds scan to.
+func plainScan(q *chanQuality, d []float64) blockScan {
+	sum, mn, mx := 0.0, math.Inf(1), math.Inf(-1)
+	prev := q.cur.val
+	repeats := false
+	hp := q.hp
+	for i := 0; i < len(d); {
+		end := len(d)
+		var acc float64
+		if hp != nil {
+			end = min(end, i+hp.m-hp.accN)
+			acc = hp.acc
+		}
+		for _, v := range d[i:end] {
+			sum += v
+			acc += v
+			if v < mn {
+				mn = v
+			}
+			if v > mx {
+				mx = v
+			}
+			repeats = repeats || v == prev
+			prev = v
+		}
+		if hp != nil {
+			hp.add(end-i, acc)
+		}
+		i = end
+	}
+	return blockScan{sum: sum, min: mn, max: mx, repeats: repeats}
+}
+
+// TestScanMatchesPlainLoop: scan's groups of four give what a plain loop
+// gives, bit for bit (sums, extremes with the sign of a zero, repeats, the
+// high-pass detector's state), on seeded noise held to a few levels (many
+// repeats, within and across blocks and groups), with signed zeros, a slow
+// rise (new extremes throughout) and a few NaNs, in blocks of lengths that
+// leave every remainder by four, with and without the detector.
+func TestScanMatchesPlainLoop(t *testing.T) {
+	rng := rand.New(rand.NewPCG(31, 32))
+	x := noise(40000, 6, 1)
+	for i := range x {
+		switch r := rng.IntN(100); {
+		case r < 30:
+			x[i] = math.Round(x[i]*4) / 4 // a few levels, -0 among them
+		case r < 35:
+			x[i] = math.Copysign(0, x[i])
+		case r < 36 && i >= 30000:
+			x[i] = math.NaN()
+		default:
+			x[i] += float64(i) / 8000
+		}
+	}
+	same := func(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) || (a != a && b != b) }
+	for _, hp := range []bool{true, false} {
+		for _, blockLen := range []int{1, 2, 3, 4, 5, 7, 64, 1001, 4096} {
+			fast, slow := newChanQuality("x", 512), newChanQuality("x", 512)
+			if !hp {
+				fast.hp, slow.hp = nil, nil
+			}
+			lines := make([]int, blockLen)
+			var psdFast, psdSlow string // before the NaNs
+			for off := 0; off < len(x); off += blockLen {
+				d := x[off:min(off+blockLen, len(x))]
+				if hp && off+len(d) <= 30000 && off+len(d)+blockLen > 30000 {
+					psdFast, psdSlow = fmt.Sprint(fast.hp.psd), fmt.Sprint(slow.hp.psd)
+				}
+				got, want := fast.scan(d), plainScan(slow, d)
+				if !same(got.sum, want.sum) || !same(got.min, want.min) || !same(got.max, want.max) || got.repeats != want.repeats {
+					t.Fatalf("detector %v, blocks of %d, at %d: %+v, want %+v", hp, blockLen, off, got, want)
+				}
+				fast.add(d, lines[:len(d)], off, 0, 0, got)
+				slow.add(d, lines[:len(d)], off, 0, 0, want)
+			}
+			if hp {
+				f, s := fast.hp, slow.hp
+				if f.segs < 2 || f.segs != s.segs || f.accN != s.accN || !same(f.acc, s.acc) || psdFast != psdSlow || fmt.Sprint(f.ring) != fmt.Sprint(s.ring) {
+					t.Fatalf("blocks of %d: detector state differs (%d segments, want %d)", blockLen, f.segs, s.segs)
+				}
+			}
+		}
+	}
+}
+
 // TestRunChecksFastPath checks the run checks' shortcut for a block without
 // equal neighbours (chanQuality.add) against the sample-by-sample loop it
 // skips, which runs when scan is told the block has repeats: the same state

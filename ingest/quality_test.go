@@ -458,3 +458,57 @@ func TestHighPassBinsExact(t *testing.T) {
 		t.Errorf("bin counts cover remainders %v by eight and %v of their groups by two, want all", byEight, groups)
 	}
 }
+
+// TestAddPairMatchesAdd: the statistics of two channels taken together
+// (addPair) are bit for bit those taken one by one (runningStats.add), on
+// seeded noise in blocks of several lengths, an empty one among them.
+func TestAddPairMatchesAdd(t *testing.T) {
+	x, y := noise(20000, 7, 2), noise(20000, 8, 0.5)
+	for i := range y {
+		y[i] += 9.81
+	}
+	for _, blockLen := range []int{1, 7, 1000, 4096} {
+		s1, t1, s2, t2 := newRunningStats(), newRunningStats(), newRunningStats(), newRunningStats()
+		q, r := newChanQuality("x", 512), newChanQuality("y", 512)
+		for off := 0; off <= len(x); off += blockLen {
+			d, e := x[off:min(off+blockLen, len(x))], y[off:min(off+blockLen, len(y))]
+			sd, se := q.scan(d), r.scan(e)
+			s1.add(d, sd)
+			t1.add(e, se)
+			addPair(&s2, &t2, d, e, sd, se)
+		}
+		if s1 != s2 || t1 != t2 {
+			t.Errorf("blocks of %d: %+v %+v, want %+v %+v", blockLen, s2, t2, s1, t1)
+		}
+	}
+}
+
+// BenchmarkRunningStats takes four channels of a 4096-sample block into
+// their running statistics one by one (runningStats.add) and two at a time
+// (addPair, what streamer.flush does).
+func BenchmarkRunningStats(b *testing.B) {
+	const n = DefaultBlockSamples
+	var d [4][]float64
+	var sc [4]blockScan
+	for k := range d {
+		d[k] = noise(n, uint64(k), 1)
+		sc[k] = newChanQuality("x", 512).scan(d[k])
+	}
+	b.Run("single", func(b *testing.B) {
+		st := [4]runningStats{newRunningStats(), newRunningStats(), newRunningStats(), newRunningStats()}
+		for b.Loop() {
+			for k := range st {
+				st[k].add(d[k], sc[k])
+			}
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(4*n), "ns/sample")
+	})
+	b.Run("pairs", func(b *testing.B) {
+		st := [4]runningStats{newRunningStats(), newRunningStats(), newRunningStats(), newRunningStats()}
+		for b.Loop() {
+			addPair(&st[0], &st[1], d[0], d[1], sc[0], sc[1])
+			addPair(&st[2], &st[3], d[2], d[3], sc[2], sc[3])
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(4*n), "ns/sample")
+	})
+}

@@ -19,7 +19,8 @@ func hpBins(x *[hpSegment]float64, kMax int, re, im *[hpSegment / 2]float64) {
 		hpBinsGo(x, kMax, re, im)
 		return
 	}
-	hpBinsAVX2(x, &hpTwiddles()[0], (kMax+hpGroup-1)/hpGroup, re, im)
+	groups := (kMax + hpGroup - 1) / hpGroup
+	hpBinsAVX2(x, &hpTwiddles(groups)[0], groups, re, im)
 }
 
 // hpGroup is the number of bins hpBinsAVX2 takes in one group: two 256-bit
@@ -33,24 +34,39 @@ var (
 	_ = [1]struct{}{}[hpGroup-8]
 )
 
-// hpTwiddles is the table hpBinsAVX2 reads, made at its first use and
-// shared: for each group of hpGroup bins (1-8, 9-16, ..., 121-128) and each
-// j = 0..hpSegment-1, the cosines hpCos[jk mod hpSegment] of the group's
-// bins k, then their sines; 512 KiB.
-var hpTwiddles = sync.OnceValue(func() []float64 {
-	const groups = hpSegment / 2 / hpGroup
-	tw := make([]float64, groups*hpSegment*2*hpGroup)
-	for g := range groups {
-		for j := range hpSegment {
-			row := tw[(g*hpSegment+j)*2*hpGroup:][:2*hpGroup]
-			for b := range hpGroup {
-				i := (j * (g*hpGroup + 1 + b)) & (hpSegment - 1)
-				row[b], row[hpGroup+b] = hpCos[i], hpSin[i]
+// hpTw is the table hpBinsAVX2 reads, shared: for each group of hpGroup
+// bins (1-8, 9-16, ...) and each j = 0..hpSegment-1, the cosines
+// hpCos[jk mod hpSegment] of the group's bins k, then their sines; 32 KiB a
+// group, made for as many groups as asked so far (9, 288 KiB, for 65 bins)
+// rather than for all 16: each page of it is a page fault the first time it
+// is written, about 12 us on a 2-core AMD EPYC (Turin) VM. Measured there
+// (perf, the hour-long rig log, 8 runs each): 1.5 ms of a run's CPU to make
+// 9 groups against 2.8 ms for 16.
+var hpTw struct {
+	sync.Mutex
+	tw []float64
+}
+
+// hpTwiddles returns hpTw's table with at least groups groups.
+func hpTwiddles(groups int) []float64 {
+	const stride = hpSegment * 2 * hpGroup // one group
+	hpTw.Lock()
+	defer hpTw.Unlock()
+	if len(hpTw.tw) < groups*stride {
+		tw := make([]float64, groups*stride)
+		for g := range groups {
+			for j := range hpSegment {
+				row := tw[g*stride+j*2*hpGroup:][:2*hpGroup]
+				for b := range hpGroup {
+					i := (j * (g*hpGroup + 1 + b)) & (hpSegment - 1)
+					row[b], row[hpGroup+b] = hpCos[i], hpSin[i]
+				}
 			}
 		}
+		hpTw.tw = tw
 	}
-	return tw
-})
+	return hpTw.tw
+}
 
 // hpBinsAVX2 is hpBins in assembly (quality_highpass_amd64.s) for groups
 // groups of hpGroup bins from bin 1, reading tw (hpTwiddles), for CPUs with

@@ -10,7 +10,8 @@ func hpBinsPaths() map[string]func(x *[hpSegment]float64, kMax int, re, im *[hpS
 	p := map[string]func(x *[hpSegment]float64, kMax int, re, im *[hpSegment / 2]float64){"Go": hpBinsGo}
 	if cpu.X86.HasAVX2 {
 		p["AVX2"] = func(x *[hpSegment]float64, kMax int, re, im *[hpSegment / 2]float64) {
-			hpBinsAVX2(x, &hpTwiddles()[0], (kMax+hpGroup-1)/hpGroup, re, im)
+			groups := (kMax + hpGroup - 1) / hpGroup
+			hpBinsAVX2(x, &hpTwiddles(groups)[0], groups, re, im)
 		}
 	}
 	return p

@@ -128,7 +128,7 @@ func TestNoTemporaryFolder(t *testing.T) {
 // BenchmarkWrite records what the rig route spools for an hour-long 512 Hz
 // log of four channels decimated by 25: 73728 samples a channel, in the
 // decimator's blocks of 164 (4096-sample input blocks), past MemoryBytes
-// through the temporary file; and ten minutes of it, in memory only.
+// through the temporary file; and ten minutes of it (2.4 MB and 0.39 MB).
 func BenchmarkWrite(b *testing.B) {
 	for _, tc := range []struct {
 		name    string

@@ -238,6 +238,92 @@ func TestWarningsJSONShape(t *testing.T) {
 	}
 }
 
+// plainScan is chanQuality.scan as a plain loop, sample by sample: the
+// definition TestScanMatchesPlainLoop holds scan to.
+func plainScan(q *chanQuality, d []float64) blockScan {
+	sum, mn, mx := 0.0, math.Inf(1), math.Inf(-1)
+	prev := q.cur.val
+	repeats := false
+	hp := q.hp
+	for i := 0; i < len(d); {
+		end := len(d)
+		var acc float64
+		if hp != nil {
+			end = min(end, i+hp.m-hp.accN)
+			acc = hp.acc
+		}
+		for _, v := range d[i:end] {
+			sum += v
+			acc += v
+			if v < mn {
+				mn = v
+			}
+			if v > mx {
+				mx = v
+			}
+			repeats = repeats || v == prev
+			prev = v
+		}
+		if hp != nil {
+			hp.add(end-i, acc)
+		}
+		i = end
+	}
+	return blockScan{sum: sum, min: mn, max: mx, repeats: repeats}
+}
+
+// TestScanMatchesPlainLoop: scan's groups of four give what a plain loop
+// gives, bit for bit (sums, extremes with the sign of a zero, repeats, the
+// high-pass detector's state), on seeded noise held to a few levels (many
+// repeats, within and across blocks and groups), with signed zeros, a slow
+// rise (new extremes throughout) and a few NaNs, in blocks of lengths that
+// leave every remainder by four, with and without the detector.
+func TestScanMatchesPlainLoop(t *testing.T) {
+	rng := rand.New(rand.NewPCG(31, 32))
+	x := noise(40000, 6, 1)
+	for i := range x {
+		switch r := rng.IntN(100); {
+		case r < 30:
+			x[i] = math.Round(x[i]*4) / 4 // a few levels, -0 among them
+		case r < 35:
+			x[i] = math.Copysign(0, x[i])
+		case r < 36 && i >= 30000:
+			x[i] = math.NaN()
+		default:
+			x[i] += float64(i) / 8000
+		}
+	}
+	same := func(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) || (a != a && b != b) }
+	for _, hp := range []bool{true, false} {
+		for _, blockLen := range []int{1, 2, 3, 4, 5, 7, 64, 1001, 4096} {
+			fast, slow := newChanQuality("x", 512), newChanQuality("x", 512)
+			if !hp {
+				fast.hp, slow.hp = nil, nil
+			}
+			lines := make([]int, blockLen)
+			var psdFast, psdSlow string // before the NaNs
+			for off := 0; off < len(x); off += blockLen {
+				d := x[off:min(off+blockLen, len(x))]
+				if hp && off+len(d) <= 30000 && off+len(d)+blockLen > 30000 {
+					psdFast, psdSlow = fmt.Sprint(fast.hp.psd), fmt.Sprint(slow.hp.psd)
+				}
+				got, want := fast.scan(d), plainScan(slow, d)
+				if !same(got.sum, want.sum) || !same(got.min, want.min) || !same(got.max, want.max) || got.repeats != want.repeats {
+					t.Fatalf("detector %v, blocks of %d, at %d: %+v, want %+v", hp, blockLen, off, got, want)
+				}
+				fast.add(d, lines[:len(d)], off, 0, 0, got)
+				slow.add(d, lines[:len(d)], off, 0, 0, want)
+			}
+			if hp {
+				f, s := fast.hp, slow.hp
+				if f.segs < 2 || f.segs != s.segs || f.accN != s.accN || !same(f.acc, s.acc) || psdFast != psdSlow || fmt.Sprint(f.ring) != fmt.Sprint(s.ring) {
+					t.Fatalf("blocks of %d: detector state differs (%d segments, want %d)", blockLen, f.segs, s.segs)
+				}
+			}
+		}
+	}
+}
+
 // TestRunChecksFastPath checks the run checks' shortcut for a block without
 // equal neighbours (chanQuality.add) against the sample-by-sample loop it
 // skips, which runs when scan is told the block has repeats: the same state
@@ -321,17 +407,22 @@ func BenchmarkBlockChecks(b *testing.B) {
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/n, "ns/sample")
 }
 
-// TestHighPassBinsExact checks the detector's four-bins-a-pass DFT against
-// the direct sum for one bin at a time (the definition), bit for bit, at the
-// rates that give each remainder of its bin count by four.
+// TestHighPassBinsExact checks the detector's DFT bins, as segment adds
+// them up and as each path this machine can run gives them (hpBinsPaths:
+// the Go loop of four bins a pass, the AVX2 groups of eight), against the
+// direct sum for one bin at a time (the definition), bit for bit, at rates
+// whose bin counts leave every remainder by four and by eight, in odd and
+// even numbers of groups of eight.
 func TestHighPassBinsExact(t *testing.T) {
-	remainders := map[int]bool{}
-	for _, fs := range []float64{98, 99.5, 200, 300} { // 64, 63, 65 and 66 bins
+	byEight, groups := map[int]bool{}, map[int]bool{}
+	// 78, 75, 73, 71, 68, 64, 61, 66 and 65 bins
+	for _, fs := range []float64{20, 21, 21.5, 22, 23, 24.5, 26, 39.5, 512} {
 		d := newHPDetector(fs)
-		remainders[d.kMax%4] = true
-		copy(d.ring[:], noise(hpSegment, uint64(fs), 1))
+		byEight[d.kMax%8] = true
+		groups[(d.kMax+7)/8%2] = true
+		copy(d.ring[:], noise(hpSegment, uint64(10*fs), 1))
 		d.segment()
-		x := make([]float64, hpSegment)
+		var x [hpSegment]float64
 		var sx float64
 		for j, v := range d.ring {
 			x[j] = v
@@ -340,18 +431,84 @@ func TestHighPassBinsExact(t *testing.T) {
 		for j := range x {
 			x[j] = (x[j] - sx/hpSegment) * hpHann[j]
 		}
+		var wantRe, wantIm [hpSegment / 2]float64
 		for k := 1; k <= d.kMax; k++ {
 			var re, im float64
 			for j, v := range x {
 				re += v * math.Cos(2*math.Pi*float64(j*k%hpSegment)/hpSegment)
 				im -= v * math.Sin(2*math.Pi*float64(j*k%hpSegment)/hpSegment)
 			}
+			wantRe[k-1], wantIm[k-1] = re, im
 			if want := re*re + im*im; d.psd[k] != want {
 				t.Errorf("%g Hz, bin %d of %d: %v, want %v", fs, k, d.kMax, d.psd[k], want)
 			}
 		}
+		for name, bins := range hpBinsPaths() {
+			var re, im [hpSegment / 2]float64
+			xs := x
+			bins(&xs, d.kMax, &re, &im)
+			for k := 1; k <= d.kMax; k++ {
+				if math.Float64bits(re[k-1]) != math.Float64bits(wantRe[k-1]) || math.Float64bits(im[k-1]) != math.Float64bits(wantIm[k-1]) {
+					t.Errorf("%s, %g Hz, bin %d of %d: %v%+vi, want %v%+vi", name, fs, k, d.kMax, re[k-1], im[k-1], wantRe[k-1], wantIm[k-1])
+				}
+			}
+		}
 	}
-	if len(remainders) != 4 {
-		t.Errorf("bin counts cover remainders %v by four, want all four", remainders)
+	if len(byEight) != 8 || len(groups) != 2 {
+		t.Errorf("bin counts cover remainders %v by eight and %v of their groups by two, want all", byEight, groups)
 	}
+}
+
+// TestAddPairMatchesAdd: the statistics of two channels taken together
+// (addPair) are bit for bit those taken one by one (runningStats.add), on
+// seeded noise in blocks of several lengths, an empty one among them.
+func TestAddPairMatchesAdd(t *testing.T) {
+	x, y := noise(20000, 7, 2), noise(20000, 8, 0.5)
+	for i := range y {
+		y[i] += 9.81
+	}
+	for _, blockLen := range []int{1, 7, 1000, 4096} {
+		s1, t1, s2, t2 := newRunningStats(), newRunningStats(), newRunningStats(), newRunningStats()
+		q, r := newChanQuality("x", 512), newChanQuality("y", 512)
+		for off := 0; off <= len(x); off += blockLen {
+			d, e := x[off:min(off+blockLen, len(x))], y[off:min(off+blockLen, len(y))]
+			sd, se := q.scan(d), r.scan(e)
+			s1.add(d, sd)
+			t1.add(e, se)
+			addPair(&s2, &t2, d, e, sd, se)
+		}
+		if s1 != s2 || t1 != t2 {
+			t.Errorf("blocks of %d: %+v %+v, want %+v %+v", blockLen, s2, t2, s1, t1)
+		}
+	}
+}
+
+// BenchmarkRunningStats takes four channels of a 4096-sample block into
+// their running statistics one by one (runningStats.add) and two at a time
+// (addPair, what streamer.flush does).
+func BenchmarkRunningStats(b *testing.B) {
+	const n = DefaultBlockSamples
+	var d [4][]float64
+	var sc [4]blockScan
+	for k := range d {
+		d[k] = noise(n, uint64(k), 1)
+		sc[k] = newChanQuality("x", 512).scan(d[k])
+	}
+	b.Run("single", func(b *testing.B) {
+		st := [4]runningStats{newRunningStats(), newRunningStats(), newRunningStats(), newRunningStats()}
+		for b.Loop() {
+			for k := range st {
+				st[k].add(d[k], sc[k])
+			}
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(4*n), "ns/sample")
+	})
+	b.Run("pairs", func(b *testing.B) {
+		st := [4]runningStats{newRunningStats(), newRunningStats(), newRunningStats(), newRunningStats()}
+		for b.Loop() {
+			addPair(&st[0], &st[1], d[0], d[1], sc[0], sc[1])
+			addPair(&st[2], &st[3], d[2], d[3], sc[2], sc[3])
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(4*n), "ns/sample")
+	})
 }

@@ -68,6 +68,7 @@ type streamer struct {
 	data, views [][]float64
 	lines       []int
 	stats       []runningStats
+	scans       []blockScan // of the block's channels
 	quality     []*chanQuality
 }
 
@@ -87,6 +88,7 @@ func newStreamer(r *Reader, consume func(Block) error) *streamer {
 	}
 	s.lines = make([]int, first)
 	s.stats = make([]runningStats, s.nch)
+	s.scans = make([]blockScan, s.nch)
 	for k := range s.stats {
 		s.stats[k] = newRunningStats()
 	}
@@ -480,8 +482,15 @@ func (s *streamer) flush() error {
 		s.views[k] = d
 		q := s.quality[k]
 		sc := q.scan(d)
-		s.stats[k].add(d, sc)
+		s.scans[k] = sc
 		q.add(d, s.lines[:s.n], start, s.firstT, s.outT0, sc)
+	}
+	k := 0
+	for ; k+2 <= s.nch; k += 2 {
+		addPair(&s.stats[k], &s.stats[k+1], s.views[k], s.views[k+1], s.scans[k], s.scans[k+1])
+	}
+	if k < s.nch {
+		s.stats[k].add(s.views[k], s.scans[k])
 	}
 	b := Block{Start: start, TimeS: s.blkT0, SampleRateHz: s.fsOut, Data: s.views}
 	s.n = 0
@@ -624,25 +633,53 @@ func (s *runningStats) add(d []float64, sc blockScan) {
 	if len(d) == 0 {
 		return
 	}
+	mb := sc.sum / float64(len(d))
+	var m2 float64
+	for _, v := range d {
+		e := v - mb
+		m2 += e * e
+	}
+	s.merge(len(d), sc, mb, m2)
+}
+
+// addPair is s.add(d, sd) and t.add(e, se) for blocks of one length, with
+// the two sums of squares in one loop: each is added in the same order as
+// alone, and their chains of additions overlap. Measured on a 2-core AMD
+// EPYC (Turin) VM shared with other work (BenchmarkRunningStats, four
+// channels of 4096 samples, medians of 10): 0.32 ns a sample against 0.65
+// one channel at a time.
+func addPair(s, t *runningStats, d, e []float64, sd, se blockScan) {
+	if len(d) == 0 {
+		return
+	}
+	e = e[:len(d)]
+	md, me := sd.sum/float64(len(d)), se.sum/float64(len(e))
+	var m2d, m2e float64
+	for i, v := range d {
+		a := v - md
+		b := e[i] - me
+		m2d += a * a
+		m2e += b * b
+	}
+	s.merge(len(d), sd, md, m2d)
+	t.merge(len(e), se, me, m2e)
+}
+
+// merge takes into s a block of nb samples, their mean mb and sum of
+// squared deviations from it m2, and what chanQuality.scan found in them.
+func (s *runningStats) merge(nb int, sc blockScan, mb, m2 float64) {
 	if sc.min < s.min {
 		s.min = sc.min
 	}
 	if sc.max > s.max {
 		s.max = sc.max
 	}
-	nb := float64(len(d))
-	mb := sc.sum / nb
-	var m2 float64
-	for _, v := range d {
-		e := v - mb
-		m2 += e * e
-	}
-	na := float64(s.n)
-	n := na + nb
+	na, fb := float64(s.n), float64(nb)
+	n := na + fb
 	delta := mb - s.mean
-	s.mean += delta * nb / n
-	s.m2 += m2 + delta*delta*na*nb/n
-	s.n += len(d)
+	s.mean += delta * fb / n
+	s.m2 += m2 + delta*delta*na*fb/n
+	s.n += nb
 }
 
 func (s runningStats) std() float64 {

@@ -152,28 +152,37 @@ func TestDecimationFactor(t *testing.T) {
 // for every length (the steps of four and the one to three left over) and
 // for the length of a real anti-alias filter, on seeded random data whose
 // magnitudes span several decades (so that the order of the additions
-// shows in the last bits).
+// shows in the last bits); dot4 as dispatched, and each of its paths this
+// machine can run (dot4Paths).
 func TestDot4MatchesDot(t *testing.T) {
-	rng := rand.New(rand.NewPCG(5, 6))
-	lengths := []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 13, 64, 65, 66, 67, len(antiAliasTaps(25))}
-	for _, n := range lengths {
-		h := make([]float64, n)
-		x := newMatrix(4, n+3)
-		for i := range h {
-			h[i] = rng.NormFloat64() * math.Pow(10, float64(rng.IntN(7)-3))
-		}
-		for _, v := range x {
-			for i := range v {
-				v[i] = rng.NormFloat64() * math.Pow(10, float64(rng.IntN(7)-3))
+	paths := map[string]func(h, x0, x1, x2, x3 []float64) (d0, d1, d2, d3 float64){"dot4": dot4}
+	for name, f := range dot4Paths() {
+		paths[name] = f
+	}
+	for name, dot := range paths {
+		t.Run(name, func(t *testing.T) {
+			rng := rand.New(rand.NewPCG(5, 6))
+			lengths := []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 13, 64, 65, 66, 67, len(antiAliasTaps(25))}
+			for _, n := range lengths {
+				h := make([]float64, n)
+				x := newMatrix(4, n+3)
+				for i := range h {
+					h[i] = rng.NormFloat64() * math.Pow(10, float64(rng.IntN(7)-3))
+				}
+				for _, v := range x {
+					for i := range v {
+						v[i] = rng.NormFloat64() * math.Pow(10, float64(rng.IntN(7)-3))
+					}
+				}
+				got := [4]float64{}
+				got[0], got[1], got[2], got[3] = dot(h, x[0], x[1], x[2][1:], x[3][3:])
+				want := [4]float64{floats.Dot(h, x[0][:n]), floats.Dot(h, x[1][:n]), floats.Dot(h, x[2][1:n+1]), floats.Dot(h, x[3][3:n+3])}
+				for k := range got {
+					if math.Float64bits(got[k]) != math.Float64bits(want[k]) {
+						t.Errorf("length %d, operand %d: %v, floats.Dot %v", n, k, got[k], want[k])
+					}
+				}
 			}
-		}
-		got := [4]float64{}
-		got[0], got[1], got[2], got[3] = dot4(h, x[0], x[1], x[2][1:], x[3][3:])
-		want := [4]float64{floats.Dot(h, x[0][:n]), floats.Dot(h, x[1][:n]), floats.Dot(h, x[2][1:n+1]), floats.Dot(h, x[3][3:n+3])}
-		for k := range got {
-			if math.Float64bits(got[k]) != math.Float64bits(want[k]) {
-				t.Errorf("length %d, operand %d: %v, floats.Dot %v", n, k, got[k], want[k])
-			}
-		}
+		})
 	}
 }

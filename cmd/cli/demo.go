@@ -28,8 +28,9 @@ import (
 var demoFiles embed.FS
 
 // Demo test conditions: a 5-minute rig run with 5 % noise on every channel
-// and mixed units, and a drop with 2 % noise; fixed seeds, so the demo gives
-// the same numbers on every machine.
+// and mixed units, and a drop with 2 % noise, both on an invented test date
+// before the campaign's runs; fixed seeds, so the demo gives the same numbers
+// on every machine.
 const (
 	demoRigDurationS = 300
 	demoCampaignRunS = 180
@@ -37,6 +38,7 @@ const (
 	demoDropNoise    = 0.02
 	demoSeed         = 20261201
 	demoCampaignRuns = 6
+	demoTestDate     = "2026-02-27"
 )
 
 func newDemoCmd() *cobra.Command {
@@ -167,9 +169,9 @@ func runDemo(cmd *cobra.Command, dir string) error {
 	seed := strconv.Itoa(demoSeed)
 	for _, args := range [][]string{
 		{"simulate", "--setup", at("built.toml"), "--test", "rig", "--out", at("rig.csv"), "--duration", strconv.Itoa(demoRigDurationS),
-			"--noise", fmt.Sprint(demoRigNoise), "--units", simulate.UnitsMixed, "--seed", seed},
+			"--noise", fmt.Sprint(demoRigNoise), "--units", simulate.UnitsMixed, "--seed", seed, "--test-date", demoTestDate},
 		{"simulate", "--setup", at("built.toml"), "--test", "drop", "--out", at("drop.csv"), "--rate", "500",
-			"--noise", fmt.Sprint(demoDropNoise), "--seed", seed},
+			"--noise", fmt.Sprint(demoDropNoise), "--seed", seed, "--test-date", demoTestDate},
 	} {
 		if err := runCommand(cmd, args...); err != nil {
 			return err
@@ -238,12 +240,13 @@ func demoCampaign(cmd *cobra.Command, dir string) error {
 		if i >= demoCampaignRuns/2 {
 			setup, note = "built-respring.toml", "after the rear spring change"
 		}
-		name := fmt.Sprintf("run-%d.csv", i+1)
+		name, date := fmt.Sprintf("run-%d.csv", i+1), fmt.Sprintf("2026-03-%02d", 2+2*i)
 		if err := runCommand(cmd, "simulate", "--setup", filepath.Join(dir, setup), "--test", "rig", "--out", filepath.Join(dir, name),
-			"--duration", strconv.Itoa(demoCampaignRunS), "--noise", fmt.Sprint(demoRigNoise), "--seed", strconv.Itoa(demoSeed+i+1)); err != nil {
+			"--duration", strconv.Itoa(demoCampaignRunS), "--noise", fmt.Sprint(demoRigNoise), "--seed", strconv.Itoa(demoSeed+i+1),
+			"--test-date", date); err != nil {
 			return err
 		}
-		manifest += fmt.Sprintf("%s,design.toml,HX-2 mule 3,%d,rig,2026-03-%02d,%s\n", name, i+1, 2+2*i, note)
+		manifest += fmt.Sprintf("%s,design.toml,HX-2 mule 3,%d,rig,%s,%s\n", name, i+1, date, note)
 	}
 	path := filepath.Join(dir, "campaign.csv")
 	if err := ingest.WriteFileAtomic(path, []byte(manifest)); err != nil {

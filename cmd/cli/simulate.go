@@ -69,6 +69,7 @@ than analyze needs for the setup gets a warning.
 	f.Float64Var(&o.RoadSpeedMPerS, "road-speed", o.RoadSpeedMPerS, "road drive: vehicle speed in `M/S`")
 	f.Float64Var(&o.DropHeightM, "drop-height", o.DropHeightM, "drop: height of the blocks in `METRES`")
 	f.Float64Var(&o.PreTriggerS, "pre-trigger", o.PreTriggerS, "drop: rest before the release in `SECONDS`")
+	f.StringVar(&o.TestDate, "test-date", "", "write `YYYY-MM-DD` into the log's notes as its test date (the report shows it)")
 	f.Float64Var(&o.RearDelayS, "rear-delay", 0, "drop: the rear axle drops this many `SECONDS` after the front, as when the car is rolled forward off blocks (wheelbase / rolling speed)")
 	deprecatedAlias(cmd, "band-low", "drive-band-low", "the drive band has its own name, apart from analyze's analysis band")
 	deprecatedAlias(cmd, "band-high", "drive-band-high", "the drive band has its own name, apart from analyze's analysis band")

@@ -73,6 +73,7 @@ func TestUsageErrorsExitTwo(t *testing.T) {
 		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", out, "--units", "G"}, `--units takes "m/s^2", "g" or "mixed" (got "G"`},
 		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", out, "--noise", "5"}, "--noise is a fraction from 0 to 1"},
 		{[]string{"simulate", "--setup", exampleSetup, "--test", "drop", "--out", out, "--duration", "5", "--rear-delay", "9"}, "--rear-delay"},
+		{[]string{"simulate", "--setup", exampleSetup, "--test", "rig", "--out", out, "--test-date", "2026-13-01"}, "--test-date takes a calendar date"},
 	} {
 		code, _, errs := run(t, c.args...)
 		if code != exitUsage || !strings.Contains(errs, c.want) {

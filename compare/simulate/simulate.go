@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"math/rand/v2"
+	"time"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/mat"
@@ -64,6 +65,11 @@ type Options struct {
 	// It need not be a whole number of samples; the rear step must fall at
 	// or before the last sample.
 	RearDelayS float64
+
+	// TestDate, when not empty, is a calendar date (YYYY-MM-DD) written
+	// into the log's notes as its test date, where a logger would put it;
+	// the report shows the first date of a log's notes.
+	TestDate string
 }
 
 // Defaults returns the default options for test "rig" or "drop".
@@ -76,6 +82,22 @@ func Defaults(test string) Options {
 	o.DurationS, o.Drive, o.BandLowHz, o.BandHighHz, o.DriveRMSMPerS2, o.RoadSpeedMPerS =
 		300, DriveRandom, 0.5, 8, 2, 15
 	return o
+}
+
+// isDate reports whether s is a calendar date written YYYY-MM-DD.
+func isDate(s string) bool {
+	_, err := time.Parse(time.DateOnly, s)
+	return err == nil
+}
+
+// notes returns a synthetic log's notes: what was simulated, that it is
+// not a measurement, and the test date when one was given.
+func (o *Options) notes(what string) []string {
+	ns := []string{what, "synthetic data from the design model in the setup file; not a measurement"}
+	if o.TestDate != "" {
+		ns = append(ns, "test date "+o.TestDate+" (given to simulate)")
+	}
+	return ns
 }
 
 // Log is a synthetic log: notes for the file's header and the columns in SI.
@@ -139,6 +161,8 @@ func (o *Options) check(rig bool) error {
 	case o.Units != UnitsSI && o.Units != UnitsG && o.Units != UnitsMixed:
 		return bad("--units takes %q, %q or %q (got %q; units are case-sensitive: g is the standard acceleration of gravity)",
 			UnitsSI, UnitsG, UnitsMixed, o.Units)
+	case o.TestDate != "" && !isDate(o.TestDate):
+		return bad("--test-date takes a calendar date as YYYY-MM-DD, such as 2031-05-04 (got %q)", o.TestDate)
 	}
 	if !rig {
 		if !(o.DropHeightM > 0) || o.DropHeightM > 0.5 {
@@ -254,11 +278,9 @@ func Rig(v compare.Vehicle, sensors []ingest.Sensor, inputs []ingest.Input, o Op
 	Uf := fft.Coefficients(nil, uf)
 	Ur := fft.Coefficients(nil, ur)
 
-	log := &Log{RateHz: o.RateHz, Notes: []string{
-		fmt.Sprintf("ridemodes simulate: rig test, %s drive %g-%g Hz, %g m/s^2 RMS per axle, %g s at %g Hz, seed %d, noise %g, offset %g m/s^2",
-			o.Drive, o.BandLowHz, o.BandHighHz, o.DriveRMSMPerS2, o.DurationS, o.RateHz, o.Seed, o.NoiseFraction, o.OffsetMPerS2),
-		"synthetic data from the design model in the setup file; not a measurement",
-	}}
+	log := &Log{RateHz: o.RateHz, Notes: o.notes(fmt.Sprintf(
+		"ridemodes simulate: rig test, %s drive %g-%g Hz, %g m/s^2 RMS per axle, %g s at %g Hz, seed %d, noise %g, offset %g m/s^2",
+		o.Drive, o.BandLowHz, o.BandHighHz, o.DriveRMSMPerS2, o.DurationS, o.RateHz, o.Seed, o.NoiseFraction, o.OffsetMPerS2))}
 	for _, in := range inputs {
 		src := uf
 		if in.Axle == "rear" {
@@ -447,9 +469,7 @@ func Drop(v compare.Vehicle, sensors []ingest.Sensor, o Options) (*Log, error) {
 			"after the front, %g s at %g Hz, seed %d, noise %g, offset %g m/s^2",
 			o.DropHeightM, float64(i0)*dt, o.RearDelayS, o.DurationS, o.RateHz, o.Seed, o.NoiseFraction, o.OffsetMPerS2)
 	}
-	log := &Log{RateHz: o.RateHz, Notes: []string{note,
-		"synthetic data from the design model in the setup file; not a measurement",
-	}}
+	log := &Log{RateHz: o.RateHz, Notes: o.notes(note)}
 	for _, s := range sensors {
 		w := make([]float64, n)
 		for i := range w {

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"strconv"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/dsp/fourier"
@@ -287,6 +288,8 @@ func TestOptionErrors(t *testing.T) {
 		func(o *Options) { o.Drive = "bumpy" },
 		func(o *Options) { o.BandHighHz = 150 },
 		func(o *Options) { o.BandLowHz = 9 },
+		func(o *Options) { o.TestDate = "02/03/2026" },
+		func(o *Options) { o.TestDate = "2026-02-30" },
 	}
 	for i, f := range bad {
 		o := Defaults("rig")
@@ -299,6 +302,33 @@ func TestOptionErrors(t *testing.T) {
 	o.DropHeightM = 0
 	if _, err := Drop(testCar, testSensors, o); err == nil {
 		t.Error("zero drop height: no error")
+	}
+}
+
+// TestTestDateNote: a test date given to simulate is written into the
+// log's notes, where a logger would put it; none is written without one.
+func TestTestDateNote(t *testing.T) {
+	for _, test := range []string{"rig", "drop"} {
+		o := Defaults(test)
+		o.DurationS = 20
+		o.TestDate = "2031-05-04"
+		var log *Log
+		var err error
+		if test == "rig" {
+			log, err = Rig(testCar, testSensors, testInputs, o)
+		} else {
+			log, err = Drop(testCar, testSensors, o)
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		if last := log.Notes[len(log.Notes)-1]; !strings.Contains(last, "test date 2031-05-04") {
+			t.Errorf("%s: notes %q, want the test date", test, log.Notes)
+		}
+	}
+	log, err := Drop(testCar, testSensors, Defaults("drop"))
+	if err != nil || strings.Contains(strings.Join(log.Notes, " "), "test date") {
+		t.Errorf("no test date given: notes %q, %v", log.Notes, err)
 	}
 }
 

@@ -25,9 +25,6 @@ type band struct {
 	loHz  float64
 	hiHz  float64
 	pairs int
-	// plain: the unweighted sums of the sweep's highest order, set by
-	// stabilise before the sweep (nil: every order sums its own)
-	plain *plainSums
 }
 
 func newBand(set *FRFSet, loHz, hiHz float64) (*band, int) {
@@ -83,18 +80,22 @@ func newBand(set *FRFSet, loHz, hiHz float64) (*band, int) {
 // matrix (outputs x inputs) B_p(x_r)/A'(x_r), the numerators being
 // recovered from the reduced equations, b_p = -R_p^-1 S_p a; the
 // stabilisation check compares these shapes between orders by the MAC.
-func lscfPoles(b *band, order int) ([]complex128, [][]complex128, error) {
+//
+// plain holds the first, unweighted pass's sums at an order of at least
+// order (newPlainSums).
+func lscfPoles(b *band, plain *plainSums, order int) ([]complex128, [][]complex128, error) {
 	ws := 2 * math.Pi * b.hiHz
 	extra := make([]float64, len(b.omega)) // Sanathanan-Koerner weights 1/|A_prev|^2
 	var a *mat.VecDense
 	var rs []*mat.Dense
 	for it := 0; it <= skIterations; it++ {
 		var err error
-		w := extra
 		if it == 0 {
-			w = nil // no weights yet
+			a, rs, err = denominator(b, order, nil, plain) // no weights yet
+		} else {
+			a, rs, err = denominator(b, order, extra, nil)
 		}
-		if a, rs, err = denominator(b, order, w); err != nil {
+		if err != nil {
 			return nil, nil, err
 		}
 		mean := 0.0
@@ -165,9 +166,10 @@ func poleShapes(b *band, a *mat.VecDense, rs []*mat.Dense, poles []complex128, w
 
 // denominator solves the reduced normal equations of lscfPoles for the
 // monic denominator's lower coefficients a_0..a_{order-1}, each bin's
-// weight multiplied by extra[n] (nil: by one). It also returns, per FRF p,
-// R_p^-1 S_p, from which the numerator coefficients follow.
-func denominator(b *band, order int, extra []float64) (*mat.VecDense, []*mat.Dense, error) {
+// weight multiplied by extra[n]; with plain not nil, the sums are plain's
+// unweighted ones instead (extra is then not used). It also returns, per
+// FRF p, R_p^-1 S_p, from which the numerator coefficients follow.
+func denominator(b *band, order int, extra []float64, plain *plainSums) (*mat.VecDense, []*mat.Dense, error) {
 	n1 := order + 1
 	M := mat.NewSymDense(n1, nil)
 	// The sums of R, S and T run over every bin: plain row-major slices
@@ -183,10 +185,10 @@ func denominator(b *band, order int, extra []float64) (*mat.VecDense, []*mat.Den
 	rs := make([]*mat.Dense, b.pairs)
 	var sc sumScratch
 	for p := range b.pairs {
-		if extra == nil && b.plain != nil && order <= b.plain.order {
-			// the sums without reweighting, as the full sweep's highest
-			// order gave them (see plainSums)
-			b.plain.sub(p, order, rSum, sSum, tSum)
+		if plain != nil {
+			// the sums without reweighting, as the sweep's highest order
+			// gave them
+			plain.sub(p, order, rSum, sSum, tSum)
 		} else {
 			clear(rSum)
 			clear(sSum)
@@ -246,10 +248,11 @@ func (sc *sumScratch) add(b *band, p, n1 int, extra []float64, rSum, sSum, tSum 
 	sp := sc.sp[:n1]
 	ws := 2 * math.Pi * b.hiHz
 	for n, om := range b.omega {
-		w2 := 1 / (b.sigma[p][n] * b.sigma[p][n])
+		num := 1.0
 		if extra != nil {
-			w2 = extra[n] / (b.sigma[p][n] * b.sigma[p][n])
+			num = extra[n]
 		}
+		w2 := num / (b.sigma[p][n] * b.sigma[p][n])
 		hr, hi := real(b.h[p][n]), imag(b.h[p][n])
 		wa := w2 * (hr*hr + hi*hi) // w2 |H|^2
 		u := om / ws
@@ -441,7 +444,7 @@ func stabilise(b *band, maxOrder int) (pts []StabilisationPoint, reached int, er
 		err    error
 	}
 	fits := make([]orderFit, maxOrder+1)
-	b.plain = newPlainSums(b, maxOrder)
+	plain := newPlainSums(b, maxOrder)
 	orders := make(chan int, maxOrder)
 	for order := maxOrder; order >= 2; order-- {
 		orders <- order
@@ -452,7 +455,7 @@ func stabilise(b *band, maxOrder int) (pts []StabilisationPoint, reached int, er
 		wg.Go(func() {
 			for order := range orders {
 				f := &fits[order]
-				f.poles, f.shapes, f.err = lscfPoles(b, order)
+				f.poles, f.shapes, f.err = lscfPoles(b, plain, order)
 			}
 		})
 	}

@@ -206,20 +206,27 @@ func TestDropSettlesAtNewEquilibrium(t *testing.T) {
 	}
 }
 
+// simulateCar simulates a test ("rig" or "drop") of the test car.
+func simulateCar(t *testing.T, test string, o Options) *Log {
+	t.Helper()
+	var log *Log
+	var err error
+	if test == "rig" {
+		log, err = Rig(testCar, testSensors, testInputs, o)
+	} else {
+		log, err = Drop(testCar, testSensors, o)
+	}
+	if err != nil {
+		t.Fatal(err)
+	}
+	return log
+}
+
 func TestReproducibleByteForByte(t *testing.T) {
 	render := func(seed uint64, test string) []byte {
 		o := Defaults(test)
 		o.Seed, o.NoiseFraction, o.DurationS, o.Units, o.OffsetMPerS2 = seed, 0.05, 20, UnitsMixed, 0.2
-		var log *Log
-		var err error
-		if test == "rig" {
-			log, err = Rig(testCar, testSensors, testInputs, o)
-		} else {
-			log, err = Drop(testCar, testSensors, o)
-		}
-		if err != nil {
-			t.Fatal(err)
-		}
+		log := simulateCar(t, test, o)
 		var buf bytes.Buffer
 		if err := log.Write(&buf); err != nil {
 			t.Fatal(err)
@@ -312,23 +319,13 @@ func TestTestDateNote(t *testing.T) {
 		o := Defaults(test)
 		o.DurationS = 20
 		o.TestDate = "2031-05-04"
-		var log *Log
-		var err error
-		if test == "rig" {
-			log, err = Rig(testCar, testSensors, testInputs, o)
-		} else {
-			log, err = Drop(testCar, testSensors, o)
-		}
-		if err != nil {
-			t.Fatal(err)
-		}
+		log := simulateCar(t, test, o)
 		if last := log.Notes[len(log.Notes)-1]; !strings.Contains(last, "test date 2031-05-04") {
 			t.Errorf("%s: notes %q, want the test date", test, log.Notes)
 		}
 	}
-	log, err := Drop(testCar, testSensors, Defaults("drop"))
-	if err != nil || strings.Contains(strings.Join(log.Notes, " "), "test date") {
-		t.Errorf("no test date given: notes %q, %v", log.Notes, err)
+	if log := simulateCar(t, "drop", Defaults("drop")); strings.Contains(strings.Join(log.Notes, " "), "test date") {
+		t.Errorf("no test date given: notes %q", log.Notes)
 	}
 }
 

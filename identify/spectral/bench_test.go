@@ -70,11 +70,7 @@ func BenchmarkAccumulate(b *testing.B) {
 				if err != nil {
 					b.Fatal(err)
 				}
-				b.ReportAllocs()
-				for b.Loop() {
-					writeBlocks(acc, rec, 4096)
-				}
-				b.ReportMetric(float64(b.N)*float64(len(rec[0]))/b.Elapsed().Seconds(), "samples/s/ch")
+				benchWrites(b, acc, rec)
 			})
 		}
 	}
@@ -90,11 +86,7 @@ func BenchmarkDecimatedAccumulate(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		b.ReportAllocs()
-		for b.Loop() {
-			writeBlocks(acc, rec, 4096)
-		}
-		b.ReportMetric(float64(b.N)*float64(len(rec[0]))/b.Elapsed().Seconds(), "samples/s/ch")
+		benchWrites(b, acc, rec)
 	})
 	b.Run("decimated-40/N=512", func(b *testing.B) {
 		acc, err := NewAccumulator(Config{FsHz: 25, SegmentLen: 512, Overlap: 256, Window: Hann}, rigChannels)
@@ -105,11 +97,7 @@ func BenchmarkDecimatedAccumulate(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		b.ReportAllocs()
-		for b.Loop() {
-			writeBlocks(dec, rec, 4096)
-		}
-		b.ReportMetric(float64(b.N)*float64(len(rec[0]))/b.Elapsed().Seconds(), "samples/s/ch")
+		benchWrites(b, dec, rec)
 	})
 }
 
@@ -127,9 +115,15 @@ func BenchmarkDecimate(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
+	benchWrites(b, dec, rec)
+}
+
+// benchWrites times writing rec to w in 4096-sample blocks and reports the
+// throughput in samples per second per channel.
+func benchWrites(b *testing.B, w BlockWriter, rec [][]float64) {
 	b.ReportAllocs()
 	for b.Loop() {
-		writeBlocks(dec, rec, 4096)
+		writeBlocks(w, rec, 4096)
 	}
 	b.ReportMetric(float64(b.N)*float64(len(rec[0]))/b.Elapsed().Seconds(), "samples/s/ch")
 }
